@@ -1,0 +1,293 @@
+// Command worth evaluates engineering-economy decision memos written in
+// Markdown and renders them as reports. See README.md for the memo language
+// and the commands.
+package main
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"worth/compute"
+	"worth/parse"
+	"worth/render"
+)
+
+const usage = `worth evaluates decision memos: Markdown with fenced cash-flow blocks.
+
+Usage:
+  worth build [-o FILE] [--format FORMAT] MEMO.md
+  worth check MEMO.md...
+
+Commands:
+  build   compute the memo and write its report
+  check   compute the memo(s) and run every expect block; write nothing
+
+Run "worth COMMAND --help" for a command's options.
+`
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+// run is main without the process: it returns the exit code.
+func run(args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, usage)
+		return 2
+	}
+	switch args[0] {
+	case "build":
+		return build(args[1:], stdout, stderr)
+	case "check":
+		return check(args[1:], stdout, stderr)
+	case "-h", "--help", "help":
+		fmt.Fprint(stdout, usage)
+		return 0
+	}
+	fmt.Fprintf(stderr, "worth: unknown command %q\n\n%s", args[0], usage)
+	return 2
+}
+
+// parseInterspersed parses flags that may come before or after the
+// positional arguments, and returns the positional ones.
+func parseInterspersed(fs *flag.FlagSet, args []string) ([]string, error) {
+	var pos []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		rest := fs.Args()
+		if len(rest) == 0 {
+			return pos, nil
+		}
+		if rest[0] == "-" && len(pos) == 0 {
+			pos = append(pos, rest[0])
+			args = rest[1:]
+			continue
+		}
+		pos = append(pos, rest[0])
+		args = rest[1:]
+	}
+}
+
+// load reads, parses and computes one memo.
+func load(path string) (*compute.Report, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	memo, err := parse.Parse(path, src)
+	if err != nil {
+		return nil, err
+	}
+	return compute.Compute(memo)
+}
+
+// formats are the writers by name.
+var formats = map[string]func(*compute.Report) ([]byte, error){
+	"md":   func(r *compute.Report) ([]byte, error) { return render.Markdown(r), nil },
+	"json": render.JSON,
+}
+
+func build(args []string, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("build", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	out := fs.String("o", "", "write one file `FILE` (format from its extension: .md, .json); - writes to standard output")
+	format := fs.String("format", "", "output `FORMAT`: md or json (default: from the -o extension)")
+	fs.Usage = func() {
+		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] MEMO.md\n\n"+
+			"Computes the memo and writes its report. Without -o, writes MEMO.report.md and\nMEMO.json beside the memo. A memo with an error writes nothing and leaves earlier\noutput untouched.\n\nOptions:\n")
+		fs.PrintDefaults()
+	}
+	pos, err := parseInterspersed(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return 0
+		}
+		return 2
+	}
+	if len(pos) != 1 {
+		fmt.Fprintln(stderr, "worth build: give exactly one memo file")
+		fs.Usage()
+		return 2
+	}
+	memoPath := pos[0]
+	// Decide the outputs before computing, so a bad option fails fast.
+	type target struct{ path, format string }
+	var targets []target
+	switch {
+	case *out != "":
+		fm := *format
+		if fm == "" {
+			if *out == "-" {
+				fm = "md"
+			} else {
+				fm = strings.TrimPrefix(strings.ToLower(filepath.Ext(*out)), ".")
+			}
+		}
+		if _, ok := formats[fm]; !ok {
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected md or json (use --format or an .md/.json file name)\n", fm)
+			return 2
+		}
+		targets = append(targets, target{*out, fm})
+	case *format != "":
+		if _, ok := formats[*format]; !ok {
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected md or json\n", *format)
+			return 2
+		}
+		targets = append(targets, target{besideMemo(memoPath, *format), *format})
+	default:
+		targets = append(targets, target{besideMemo(memoPath, "md"), "md"}, target{besideMemo(memoPath, "json"), "json"})
+	}
+	rep, err := load(memoPath)
+	if err != nil {
+		printErr(stderr, err)
+		return 2
+	}
+	// Render everything first; write only when all succeeded.
+	outputs := make([][]byte, len(targets))
+	for i, t := range targets {
+		b, err := formats[t.format](rep)
+		if err != nil {
+			fmt.Fprintf(stderr, "worth build: %v\n", err)
+			return 2
+		}
+		outputs[i] = b
+	}
+	for i, t := range targets {
+		if t.path == "-" {
+			if _, err := stdout.Write(outputs[i]); err != nil {
+				fmt.Fprintf(stderr, "worth build: %v\n", err)
+				return 2
+			}
+			continue
+		}
+		if err := writeAtomic(t.path, outputs[i]); err != nil {
+			fmt.Fprintf(stderr, "worth build: %v\n", err)
+			return 2
+		}
+	}
+	for _, x := range rep.Expectations {
+		if !x.Passed {
+			fmt.Fprintf(stderr, "%s:%d:%d: warning: expectation does not hold: %s\n", memoPath, x.Line, x.Col, x.Text)
+		}
+	}
+	return 0
+}
+
+// besideMemo names an output file next to the memo: memo.report.md for
+// Markdown (so the memo itself is never overwritten), memo.json, ...
+func besideMemo(memo, format string) string {
+	base := strings.TrimSuffix(memo, filepath.Ext(memo))
+	if format == "md" {
+		return base + ".report.md"
+	}
+	return base + "." + format
+}
+
+// writeAtomic writes data to a temporary file in the same folder and
+// renames it over path, so a reader never sees a partial file and a failure
+// leaves the earlier file untouched.
+func writeAtomic(path string, data []byte) error {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".*.tmp")
+	if err != nil {
+		return err
+	}
+	name := tmp.Name()
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		os.Remove(name)
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(name)
+		return err
+	}
+	if err := os.Chmod(name, 0o644); err != nil {
+		os.Remove(name)
+		return err
+	}
+	if err := os.Rename(name, path); err != nil {
+		os.Remove(name)
+		return err
+	}
+	return nil
+}
+
+func printErr(w io.Writer, err error) {
+	var list parse.ErrorList
+	if errors.As(err, &list) {
+		for _, e := range list {
+			fmt.Fprintln(w, e.Error())
+		}
+		return
+	}
+	fmt.Fprintf(w, "worth: %v\n", err)
+}
+
+func check(args []string, stdout, stderr io.Writer) int {
+	fs := flag.NewFlagSet("check", flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	quiet := fs.Bool("q", false, "print nothing when every expectation holds")
+	fs.Usage = func() {
+		fmt.Fprintf(fs.Output(), "Usage: worth check [-q] MEMO.md...\n\n"+
+			"Parses and computes each memo and runs every expect block, writing no files.\n"+
+			"Exit status: 0 when every expectation holds, 1 when one fails, 2 on an error in a memo.\n\nOptions:\n")
+		fs.PrintDefaults()
+	}
+	pos, err := parseInterspersed(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return 0
+		}
+		return 2
+	}
+	if len(pos) == 0 {
+		fmt.Fprintln(stderr, "worth check: give one or more memo files")
+		fs.Usage()
+		return 2
+	}
+	code := 0
+	for _, path := range pos {
+		rep, err := load(path)
+		if err != nil {
+			printErr(stderr, err)
+			code = 2
+			continue
+		}
+		failed := 0
+		for _, x := range rep.Expectations {
+			if !x.Passed {
+				failed++
+				msg := x.Text
+				if x.Detail != "" {
+					msg += " (" + x.Detail + ")"
+				}
+				fmt.Fprintf(stdout, "%s:%d:%d: expectation fails: %s\n", path, x.Line, x.Col, msg)
+			}
+		}
+		if failed > 0 {
+			if code == 0 {
+				code = 1
+			}
+			continue
+		}
+		if !*quiet {
+			fmt.Fprintf(stdout, "%s: ok, %d expectation%s hold\n", path, len(rep.Expectations), plural(len(rep.Expectations)))
+		}
+	}
+	return code
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
