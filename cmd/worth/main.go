@@ -81,11 +81,23 @@ func load(path string) (*compute.Report, error) {
 	if err != nil {
 		return nil, err
 	}
-	memo, err := parse.Parse(path, src)
-	if err != nil {
+	// Compute even when parsing found errors, so that every error of the
+	// memo is reported at once.
+	memo, perr := parse.Parse(path, src)
+	rep, cerr := compute.Compute(memo)
+	var all parse.ErrorList
+	for _, err := range []error{perr, cerr} {
+		var list parse.ErrorList
+		if errors.As(err, &list) {
+			all = append(all, list...)
+		} else if err != nil {
+			return nil, err
+		}
+	}
+	if err := all.Err(); err != nil {
 		return nil, err
 	}
-	return compute.Compute(memo)
+	return rep, nil
 }
 
 // formats are the writers by name.
