@@ -17,6 +17,12 @@ type Doc struct {
 	Caution  string
 	// AllowHTML lets raw HTML in the prose through to the HTML writer.
 	AllowHTML bool
+	// Dir is the memo's folder, where a logo is looked for ("" when the
+	// memo was not read from a file).
+	Dir string
+	// AppendixOnly is set when the document holds only the calculation
+	// appendix (Body is empty).
+	AppendixOnly bool
 }
 
 // KV is a labelled value of the memo heading.
@@ -91,6 +97,9 @@ type Table struct {
 	// Source names the block and line the table comes from, e.g.
 	// "alternative steel, line 20".
 	Source string
+	// BoldCols marks columns to set in bold (the recommended alternative
+	// of a results table).
+	BoldCols []bool
 }
 
 // Equations is the worked solution of one alternative: steps of
@@ -106,6 +115,9 @@ type Callout struct {
 	Title string
 	Text  string
 	Items []string // further lines, e.g. the warnings of a comparison
+	// Facts are labelled lines shown before the items, e.g. the rule used
+	// and the margin over the runner-up.
+	Facts []KV
 }
 
 // Chart is a chart described once and drawn by each writer.
@@ -124,6 +136,22 @@ type Chart struct {
 	// Marks are labelled points (a rate of return, a crossover rate, a
 	// payback year) and vertical or horizontal reference lines.
 	Marks []Mark
+	// The axes, computed once so every writer draws the same: the span of
+	// each axis and its ticks with their labels, formatted by XFormat and
+	// YFormat. For a cash-flow diagram X is the year and Y the net flow.
+	XMin, XMax, YMin, YMax float64
+	XTicks, YTicks         []Tick
+	// Notes are short lines shown under the chart, e.g. the annual series
+	// of a cash-flow diagram ("annual cost: $12,500, years 1 to 24").
+	Notes []string
+	// Source names the block and line the chart comes from.
+	Source string
+}
+
+// Tick is a labelled position on an axis.
+type Tick struct {
+	At    float64
+	Label string
 }
 
 // Series is one named curve (Y may hold NaN where undefined) or set of bars.
@@ -147,6 +175,12 @@ type Mark struct {
 	X, Y       float64
 	HasX, HasY bool
 	Label      string
+	// Series is the index of the series the mark belongs to (drawn in its
+	// colour), or -1 for a mark of the whole chart.
+	Series int
+	// Kind says what the mark is: "rate" (the comparison's rate), "irr",
+	// "crossover" or "payback".
+	Kind string
 }
 
 func (Heading) node()   {}
