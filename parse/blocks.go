@@ -2,6 +2,7 @@ package parse
 
 import (
 	"regexp"
+	"sort"
 	"strings"
 
 	"worth/expr"
@@ -13,8 +14,10 @@ var (
 	reAt       = regexp.MustCompile(`^(cost|benefit|disbenefit) at year (\S+)$`)
 	reAnnual   = regexp.MustCompile(`^annual (cost|benefit|disbenefit)(?: from year (\S+))?(?: to year (\S+))?$`)
 	rePeriodic = regexp.MustCompile(`^(cost|benefit|disbenefit) every (\S+) years?(?: from year (\S+))?(?: to year (\S+))?$`)
-	reEscalate = regexp.MustCompile(`(?i)\s+escalating\s+`)
-	reGradient = regexp.MustCompile(`(?i)\s+gradient\s+`)
+	// The keyword may end the line ("X escalating"), so that a missing
+	// value is reported as such rather than as a bad expression.
+	reEscalate = regexp.MustCompile(`(?i)\s+escalating(?:\s+|$)`)
+	reGradient = regexp.MustCompile(`(?i)\s+gradient(?:\s+|$)`)
 )
 
 var alternativeForms = []string{
@@ -104,7 +107,7 @@ func (p *parser) alternative(h BlockHead, lines []srcLine) Block {
 				fl.Every, fl.From, fl.To = sub(m, 2), sub(m, 3), sub(m, 4)
 			} else {
 				msg := "unknown line %q in alternative %s; expected a form such as \"first cost\", \"annual cost\", \"cost at year N\", \"cost every K years\", \"salvage\" or \"life\""
-				if s := expr.Closest(key, alternativeForms); s != "" {
+				if s := suggestKey(key, alternativeForms); s != "" {
 					p.errorf(keyText.Pos, msg+"; did you mean %q?", keyText.Src, h.ID, s)
 				} else {
 					p.errorf(keyText.Pos, msg, keyText.Src, h.ID)
@@ -134,27 +137,48 @@ func indexWord(label, w string, hint int) int {
 }
 
 // gradients splits "X escalating G%" and "X gradient G" off the amount.
+//
+// Fix (tests' corpus, testdata/errors): the keywords are located in the
+// amount as written and split off from the rightmost one, so that
+// "X escalating G gradient H" reaches the "not both" error instead of
+// leaving "G gradient H" as the escalation; an error about a keyword points
+// at the keyword itself, not at the space before it; and on a line that is
+// not annual the keyword and its value are cut off the amount, so that the
+// compute stage does not report the same mistake again as a bad expression.
 func (p *parser) gradients(fl *FlowLine, val Text) {
+	type kw struct {
+		word string
+		dst  **Text
+		m    []int
+	}
+	var found []kw
 	for _, g := range []struct {
 		re   *regexp.Regexp
 		word string
 		dst  **Text
 	}{{reEscalate, "escalating", &fl.Escalating}, {reGradient, "gradient", &fl.Gradient}} {
-		m := g.re.FindStringIndex(fl.Amount.Src)
-		if m == nil {
+		if m := g.re.FindStringIndex(fl.Amount.Src); m != nil {
+			found = append(found, kw{g.word, g.dst, m})
+		}
+	}
+	// Rightmost first: each split then leaves the other keyword in the amount.
+	sort.Slice(found, func(i, j int) bool { return found[i].m[0] > found[j].m[0] })
+	src := fl.Amount.Src
+	for _, k := range found {
+		word := k.m[0] + strings.Index(strings.ToLower(src[k.m[0]:k.m[1]]), k.word)
+		wordPos := fl.Amount.Pos.Shift(len([]rune(src[:word])))
+		after := min(k.m[1], len(fl.Amount.Src)) // the keywords' matches may share a space
+		rest := Text{Src: strings.TrimSpace(fl.Amount.Src[after:]), Pos: fl.Amount.Pos.Shift(len([]rune(src[:after])))}
+		fl.Amount = Text{Src: strings.TrimSpace(src[:k.m[0]]), Pos: fl.Amount.Pos}
+		if fl.Kind != Annual {
+			p.errorf(wordPos, "%q applies only to annual amounts (\"annual cost: X %s ...\")", k.word, k.word)
 			continue
 		}
-		if fl.Kind != Annual {
-			p.errorf(fl.Amount.Pos.Shift(len([]rune(fl.Amount.Src[:m[0]]))), "%q applies only to annual amounts (\"annual cost: X %s ...\")", g.word, g.word)
-			return
-		}
-		rest := Text{Src: strings.TrimSpace(fl.Amount.Src[m[1]:]), Pos: fl.Amount.Pos.Shift(len([]rune(fl.Amount.Src[:m[1]])))}
-		fl.Amount = Text{Src: strings.TrimSpace(fl.Amount.Src[:m[0]]), Pos: fl.Amount.Pos}
 		if rest.Src == "" {
-			p.errorf(rest.Pos, "%s needs a value after it", g.word)
-			return
+			p.errorf(wordPos, "%s needs a value after it", k.word)
+			continue
 		}
-		*g.dst = &rest
+		*k.dst = &rest
 	}
 	if fl.Escalating != nil && fl.Gradient != nil {
 		p.errorf(fl.Gradient.Pos, "an annual amount may escalate (geometric) or have a gradient (arithmetic), not both")
@@ -313,7 +337,7 @@ func (p *parser) compare(h BlockHead, lines []srcLine) Block {
 			c.Base = &Ref{ID: val.Src, Pos: val.Pos}
 		default:
 			msg := "unknown line %q in compare %s; expected one of %s"
-			if s := expr.Closest(key, compareKeys); s != "" {
+			if s := suggestKey(key, compareKeys); s != "" {
 				p.errorf(keyText.Pos, msg+"; did you mean %q?", keyText.Src, h.ID, quoteList(compareKeys), s)
 			} else {
 				p.errorf(keyText.Pos, msg, keyText.Src, h.ID, quoteList(compareKeys))
@@ -375,6 +399,28 @@ func (p *parser) checkIDs() {
 			}
 		}
 	}
+}
+
+// suggestKey returns the known key closest to a mistyped one, or else the
+// only known key that the written one abbreviates or extends by whole words
+// ("decide" for "decide by", "salvage value" for "salvage"), or "".
+//
+// Fix (tests' corpus, testdata/errors): "decide: present worth" used to get
+// no suggestion, because "decide by" is three edits away.
+func suggestKey(key string, known []string) string {
+	if s := expr.Closest(key, known); s != "" {
+		return s
+	}
+	match := ""
+	for _, k := range known {
+		if strings.HasPrefix(k, key+" ") || strings.HasPrefix(key, k+" ") {
+			if match != "" {
+				return ""
+			}
+			match = k
+		}
+	}
+	return match
 }
 
 func contains(list []string, s string) bool {

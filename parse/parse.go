@@ -132,7 +132,13 @@ func (p *parser) readYAML(y []byte, lineOffset int) {
 				}
 			}
 		}
-		p.errorf(Pos{File: p.memo.File, Line: line, Col: 1}, "front matter is not valid YAML: %s", strings.TrimPrefix(msg, "yaml: "))
+		msg = strings.TrimPrefix(msg, "yaml: ")
+		// Fix (tests' corpus, testdata/errors): the commonest cause, a title
+		// holding ": ", now says what to do about it.
+		if strings.Contains(msg, "mapping values are not allowed") {
+			msg += "; a value that holds \": \" must be in quotes, e.g. title: \"Intake screens: steel or wedge-wire\""
+		}
+		p.errorf(Pos{File: p.memo.File, Line: line, Col: 1}, "front matter is not valid YAML: %s", msg)
 		return
 	}
 	if len(doc.Content) == 0 {
@@ -372,7 +378,7 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 	head.EndLine = infoPos.Line + n.Lines().Len() + 1
 	if kindsWithID[kind] {
 		if len(words) < 2 {
-			p.errorf(infoPos.Shift(len([]rune(kind))), "a %s block needs an id after %q, e.g. ```%s %s", kind, kind, kind, exampleID[kind])
+			p.errorf(infoPos.Shift(len([]rune(kind))), "%s %s block needs an id after %q, e.g. ```%s %s", article(kind), kind, kind, kind, exampleID[kind])
 		} else {
 			head.ID = words[1]
 			at := strings.Index(info, words[1])
@@ -387,7 +393,7 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 		}
 	} else if len(words) > 1 {
 		at := strings.Index(info[len(kind):], words[1]) + len(kind)
-		p.errorf(infoPos.Shift(len([]rune(info[:at]))), "a %s block takes no id; remove %q", kind, words[1])
+		p.errorf(infoPos.Shift(len([]rune(info[:at]))), "%s %s block takes no id; remove %q", article(kind), kind, words[1])
 	}
 	if notYet[kind] {
 		p.errorf(infoPos, "the %s block is part of the memo language but this version of worth does not read it yet", kind)
@@ -411,6 +417,17 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 		p.memo.Blocks = append(p.memo.Blocks, b)
 		p.memo.Nodes[n] = b
 	}
+}
+
+// article is "an" before a block kind that starts with a vowel, else "a".
+//
+// Fix (tests' corpus, testdata/errors): messages read "a alternative block"
+// and "a assume block".
+func article(kind string) string {
+	if kind != "" && strings.ContainsRune("aeiou", rune(kind[0])) {
+		return "an"
+	}
+	return "a"
 }
 
 var exampleID = map[string]string{
