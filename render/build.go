@@ -780,6 +780,22 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 		ch.Marks = append(ch.Marks, Mark{X: x.Rate, Y: x.Worth, HasX: true, HasY: true, Label: "crossover " + b.f.Percent(x.Rate), Series: -1, Kind: "crossover"})
 		cross = append(cross, fmt.Sprintf("%s and %s cross at %s", name(c, x.A), name(c, x.B), b.f.Percent(x.Rate)))
 	}
+	// Keep the curves readable where one runs off towards infinity (an
+	// escalation near the rate): the span is at most three times the
+	// largest worth at the comparison's rate or at a crossover.
+	ref := 0.0
+	for _, r := range c.Results {
+		ref = math.Max(ref, math.Abs(r.PW))
+	}
+	for _, x := range xs {
+		ref = math.Max(ref, math.Abs(x.Worth))
+	}
+	if ref > 0 {
+		ylo, yhi = math.Max(ylo, -3*ref), math.Min(yhi, 3*ref)
+	}
+	if ylo >= yhi {
+		ylo, yhi = -1, 1
+	}
 	ch.XMin, ch.XMax, ch.XTicks = b.axis(lo, hi, 8, "percent", true)
 	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
 	text := fmt.Sprintf("%s of each alternative at interest rates from %s to %s. At the comparison's rate, %s.", word, b.f.Rate(lo), b.f.Rate(hi), strings.Join(alt, "; "))
@@ -1011,8 +1027,8 @@ func (b *builder) conventions() List {
 
 // ---- chart axes ----
 
-// niceStep rounds a raw step up to 1, 2, 2.5 or 5 times a power of ten.
-func niceStep(raw float64) float64 {
+// axisStep rounds a raw step up to 1, 2, 2.5 or 5 times a power of ten.
+func axisStep(raw float64) float64 {
 	if raw <= 0 || math.IsNaN(raw) || math.IsInf(raw, 0) {
 		return 1
 	}
@@ -1035,7 +1051,7 @@ func (b *builder) axis(lo, hi float64, n int, kind string, clip bool) (min, max 
 	if hi == lo {
 		hi = lo + 1
 	}
-	step := niceStep((hi - lo) / float64(n-1))
+	step := axisStep((hi - lo) / float64(n-1))
 	if kind == "year" && step < 1 {
 		step = 1
 	}
