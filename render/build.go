@@ -735,7 +735,7 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 	ylo, yhi := math.Inf(1), math.Inf(-1)
 	for k, cv := range curves {
 		idx[cv.Alt] = k
-		ch.Series = append(ch.Series, Series{Name: name(c, cv.Alt), X: cv.Rates, Y: cv.Worths})
+		ch.Series = append(ch.Series, Series{Name: name(c, cv.Alt), X: cv.Rates, Y: cv.Worths, Emphasis: leading(c, cv.Alt)})
 		for j, y := range cv.Worths {
 			lo, hi = math.Min(lo, cv.Rates[j]), math.Max(hi, cv.Rates[j])
 			if !math.IsNaN(y) && !math.IsInf(y, 0) {
@@ -761,7 +761,7 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 		var shown []string
 		for _, root := range roots {
 			shown = append(shown, b.f.Percent(root))
-			if in(root) {
+			if in(root) && (len(c.Results) <= manySeries || leading(c, r.Alt.ID)) {
 				ch.Marks = append(ch.Marks, Mark{X: root, Y: 0, HasX: true, HasY: true, Label: b.f.Percent(root), Series: idx[r.Alt.ID], Kind: "irr"})
 				ylo, yhi = math.Min(ylo, 0), math.Max(yhi, 0)
 			}
@@ -777,8 +777,11 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 		if !in(x.Rate) {
 			continue
 		}
-		ch.Marks = append(ch.Marks, Mark{X: x.Rate, Y: x.Worth, HasX: true, HasY: true, Label: "crossover " + b.f.Percent(x.Rate), Series: -1, Kind: "crossover"})
 		cross = append(cross, fmt.Sprintf("%s and %s cross at %s", name(c, x.A), name(c, x.B), b.f.Percent(x.Rate)))
+		if len(c.Results) > manySeries && !(leading(c, x.A) && leading(c, x.B)) {
+			continue
+		}
+		ch.Marks = append(ch.Marks, Mark{X: x.Rate, Y: x.Worth, HasX: true, HasY: true, Label: "crossover " + b.f.Percent(x.Rate), Series: -1, Kind: "crossover"})
 	}
 	// Keep the curves readable where one runs off towards infinity (an
 	// escalation near the rate): the span is at most three times the
@@ -808,6 +811,17 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 	return ch
 }
 
+// manySeries is the number of alternatives past which a chart marks only
+// the recommended alternative and the runner-up, and draws the others
+// faintly.
+const manySeries = 6
+
+// leading reports whether an alternative is the recommended one or the
+// runner-up of a comparison.
+func leading(c *compute.Comparison, id string) bool {
+	return id == c.Recommended || id == c.RunnerUp
+}
+
 // paybackChart is the cumulative net cash flow of each alternative by year,
 // where any alternative has benefits.
 func (b *builder) paybackChart(c *compute.Comparison) (Chart, bool) {
@@ -833,7 +847,7 @@ func (b *builder) paybackChart(c *compute.Comparison) (Chart, bool) {
 	ylo, yhi := 0.0, 0.0
 	var alt []string
 	for k, r := range c.Results {
-		s := Series{Name: r.Alt.Name}
+		s := Series{Name: r.Alt.Name, Emphasis: leading(c, r.Alt.ID)}
 		for _, y := range r.Flows {
 			s.X = append(s.X, float64(y.Year))
 			s.Y = append(s.Y, y.Cumulative)
@@ -844,6 +858,10 @@ func (b *builder) paybackChart(c *compute.Comparison) (Chart, bool) {
 		last := len(s.X) - 1
 		switch {
 		case r.Payback != nil && last >= 0 && *r.Payback <= s.X[last]:
+			if len(c.Results) > manySeries && !s.Emphasis {
+				alt = append(alt, fmt.Sprintf("%s pays back in %s", r.Alt.Name, b.f.Years(*r.Payback)))
+				break
+			}
 			ch.Marks = append(ch.Marks, Mark{X: *r.Payback, Y: 0, HasX: true, HasY: true, Label: "payback " + b.f.Years(*r.Payback), Series: k, Kind: "payback"})
 			alt = append(alt, fmt.Sprintf("%s pays back in %s", r.Alt.Name, b.f.Years(*r.Payback)))
 		case r.Payback != nil:

@@ -158,6 +158,9 @@ type Tick struct {
 type Series struct {
 	Name string
 	X, Y []float64
+	// Emphasis marks the series to bring forward (the recommended
+	// alternative and the runner-up) where a chart has many.
+	Emphasis bool
 }
 
 // Arrow is one year's net flow on a cash-flow diagram: up for a benefit,

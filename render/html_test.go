@@ -358,7 +358,9 @@ func TestHTMLChromium(t *testing.T) {
 		t.Skip("chromium is not on PATH; install Debian's chromium to run this test")
 	}
 	dir := t.TempDir()
-	for _, p := range memoFiles(t) {
+	// The hostile memo too: escaped, it must load without a refused
+	// script or resource.
+	for _, p := range append(memoFiles(t), "testdata/hostile.md") {
 		name := strings.TrimSuffix(filepath.Base(p), ".md")
 		page := filepath.Join(dir, name+".html")
 		if err := os.WriteFile(page, htmlOf(t, p, DocOptions{}), 0o644); err != nil {

@@ -338,8 +338,12 @@ func layoutLines(c *Chart, id string) svgChart {
 	}
 	out.Clip = &svgRect{num(f.left), num(f.top), num(f.right - f.left), num(f.bottom - f.top), ""}
 	curves := svgGroup{Class: "series", Clip: id + "-clip"}
+	faint := len(c.Series) > manySeries
 	for k, s := range c.Series {
 		cls := seriesClass(k)
+		if faint && !s.Emphasis {
+			cls += " faint"
+		}
 		out.Legend = append(out.Legend, svgLegend{Name: s.Name, Class: cls})
 		var d strings.Builder
 		pen := false
