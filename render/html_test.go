@@ -428,3 +428,24 @@ func BenchmarkHTML(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkHTMLAndPDF is the issue's measure: an example memo, from the
+// computed report, to both HTML and PDF (target: well under 100 ms).
+func BenchmarkHTMLAndPDF(b *testing.B) {
+	path := "testdata/conveyor.md"
+	if ex, _ := filepath.Glob("../examples/*.md"); len(ex) > 0 {
+		path = ex[0]
+	}
+	rep := loadReport(b, path)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		doc := BuildDoc(rep, DocOptions{})
+		if _, err := HTML(doc, HTMLOptions{}); err != nil {
+			b.Fatal(err)
+		}
+		if _, err := PDF(doc, PDFOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
