@@ -71,6 +71,16 @@ func BuildDoc(rep *compute.Report, opt DocOptions) *Doc {
 	}
 	if !opt.AppendixOnly && m.Doc != nil {
 		doc.Body = b.blocks(m.Doc)
+		// The appendix's headings take the level of the memo's own
+		// sections (a memo whose sections are "##" gets a "##" appendix).
+		walk(doc.Body, func(n Node) {
+			if h, ok := n.(Heading); ok && (b.top == 0 || h.Level < b.top) {
+				b.top = h.Level
+			}
+		})
+	}
+	if b.top == 0 || b.top > 5 {
+		b.top = 1
 	}
 	doc.Appendix = b.appendix()
 	return doc
@@ -82,6 +92,8 @@ type builder struct {
 	src   []byte
 	f     Format
 	slugs map[string]int
+	// top is the level of the memo's top headings.
+	top int
 }
 
 // ---- prose ----
@@ -138,6 +150,21 @@ func (b *builder) blocks(parent ast.Node) []Node {
 		}
 	}
 	return out
+}
+
+// walk calls fn for every node of a tree, list items and quotes included.
+func walk(ns []Node, fn func(Node)) {
+	for _, n := range ns {
+		fn(n)
+		switch x := n.(type) {
+		case List:
+			for _, it := range x.Items {
+				walk(it, fn)
+			}
+		case Quote:
+			walk(x.Body, fn)
+		}
+	}
 }
 
 // lines joins a block's lines verbatim.
@@ -936,26 +963,44 @@ func (b *builder) schedule(r *compute.Result, c *compute.Comparison) Table {
 	for _, y := range r.Flows {
 		out := y.ByCategory[compute.Investment] + y.ByCategory[compute.Operating] + y.ByCategory[compute.Disbenefits]
 		in := y.ByCategory[compute.Benefits] + y.ByCategory[compute.Recovery]
-		t.Rows = append(t.Rows, []string{strconv.Itoa(y.Year), moneyOrBlank(b.f, -out), moneyOrBlank(b.f, in),
-			b.f.Money(y.Net), b.f.Money(y.Discounted), b.f.Money(y.CumDiscounted), FlowNotes(y)})
+		t.Rows = append(t.Rows, []string{strconv.Itoa(y.Year), b.wholeOrBlank(-out), b.wholeOrBlank(in),
+			b.whole(y.Net), b.whole(y.Discounted), b.whole(y.CumDiscounted), FlowNotes(y)})
 	}
 	return t
+}
+
+// whole formats money in whole currency units, so that a column of a
+// schedule rounds alike (small discounted amounts would otherwise take
+// cents).
+func (b *builder) whole(x float64) string {
+	s := number(x, 0)
+	if x < 0 && !isZero(s) {
+		return b.f.Minus + b.f.Cur.Symbol + s
+	}
+	return b.f.Cur.Symbol + s
+}
+
+func (b *builder) wholeOrBlank(x float64) string {
+	if x == 0 {
+		return ""
+	}
+	return b.whole(x)
 }
 
 // ---- appendix ----
 
 func (b *builder) appendix() []Node {
-	out := []Node{Heading{Level: 1, Text: []Inline{{Text: "Appendix: calculations"}}, ID: b.slug("appendix")}}
+	out := []Node{Heading{Level: b.top, Text: []Inline{{Text: "Appendix: calculations"}}, ID: b.slug("appendix")}}
 	for _, c := range b.rep.Comparisons {
-		out = append(out, Heading{Level: 2, Text: []Inline{{Text: "Year-by-year cash flows, comparison " + c.ID}}, ID: b.slug("cash flows " + c.ID)})
+		out = append(out, Heading{Level: b.top + 1, Text: []Inline{{Text: "Year-by-year cash flows, comparison " + c.ID}}, ID: b.slug("cash flows " + c.ID)})
 		for _, r := range c.Results {
 			out = append(out, b.schedule(r, c))
 		}
 	}
 	if t, ok := b.factorTable(); ok {
-		out = append(out, Heading{Level: 2, Text: []Inline{{Text: "Factor values used"}}, ID: b.slug("factor values")}, t)
+		out = append(out, Heading{Level: b.top + 1, Text: []Inline{{Text: "Factor values used"}}, ID: b.slug("factor values")}, t)
 	}
-	out = append(out, Heading{Level: 2, Text: []Inline{{Text: "Conventions"}}, ID: b.slug("conventions")})
+	out = append(out, Heading{Level: b.top + 1, Text: []Inline{{Text: "Conventions"}}, ID: b.slug("conventions")})
 	out = append(out, b.conventions())
 	return out
 }

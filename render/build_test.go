@@ -30,21 +30,6 @@ func loadReport(t testing.TB, path string) *compute.Report {
 	return rep
 }
 
-// walk calls fn for every node of a tree, list items and quotes included.
-func walk(ns []Node, fn func(Node)) {
-	for _, n := range ns {
-		fn(n)
-		switch x := n.(type) {
-		case List:
-			for _, it := range x.Items {
-				walk(it, fn)
-			}
-		case Quote:
-			walk(x.Body, fn)
-		}
-	}
-}
-
 func TestBuildDocConveyor(t *testing.T) {
 	rep := loadReport(t, "testdata/conveyor.md")
 	doc := BuildDoc(rep, DocOptions{})

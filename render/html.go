@@ -52,7 +52,17 @@ func HTML(doc *Doc, opt HTMLOptions) ([]byte, error) {
 		return nil, err
 	}
 	charts := 0
+	// The memo's top heading level becomes h2 (h1 is the memo's title).
+	top := 6
+	for _, ns := range [][]Node{doc.Body, doc.Appendix} {
+		walk(ns, func(n Node) {
+			if h, ok := n.(Heading); ok && h.Level < top {
+				top = h.Level
+			}
+		})
+	}
 	t.Funcs(template.FuncMap{
+		"headingLevel": func(l int) int { return min(max(l-top+2, 2), 6) },
 		"rawHTML": func(s string) any {
 			if doc.AllowHTML {
 				return template.HTML(neutraliseRaw(s))
