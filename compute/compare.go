@@ -330,7 +330,10 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 		}
 	}
 	for _, t := range cycle {
-		r.ByCategory[t.Cat] += math.Abs(t.Value) * scale
+		// Fix (tests): the category's amount is the term's value times the
+		// category's sign, not its absolute value, so that a negative
+		// gradient term reduces its category instead of adding to it.
+		r.ByCategory[t.Cat] += t.Cat.sign() * t.Value * scale
 	}
 	// Year-by-year: the first cycle, or the first years of a service with
 	// no life; payback over up to 1,000 years of repeated cycles.
@@ -346,7 +349,22 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 	long := a.Flows(MaxRepeatYears, false)
 	discount(long, i)
 	signs := a.Flows(2*show, false)
-	rateOfReturn(r, netFlows(signs), func(x float64) float64 { return a.perpetualPW(x) })
+	// Fix (speed, see bench_test.go): with a life, the capitalized worth
+	// PW₁(x) (A/P, x, L) / x has the roots of one cycle's present worth
+	// PW₁(x), since (A/P, x, L) / x > 0 for x > 0; scanning the NPV of the
+	// cycle's flows (r.Flows) finds the same rates without rebuilding the
+	// worked terms at every grid point. NaN at x <= 0, as perpetualPW.
+	pwAt := a.perpetualPW
+	if a.Life > 0 {
+		cycle := netFlows(r.Flows)
+		pwAt = func(x float64) float64 {
+			if x <= 0 {
+				return math.NaN()
+			}
+			return NPV(x, cycle)
+		}
+	}
+	rateOfReturn(r, netFlows(signs), pwAt)
 	r.Payback, r.DiscPayback = payback(long, i)
 }
 

@@ -1,7 +1,6 @@
 package compute
 
 import (
-	"errors"
 	"fmt"
 	"sort"
 	"strings"
@@ -167,10 +166,10 @@ func (e *env) expectation(cond parse.Text) *Expectation {
 	if x == nil {
 		return nil
 	}
+	e.na = nil
 	v, err := x.Eval(e.vars)
 	if err != nil {
-		var na notApplicable
-		if errors.As(err, &na) {
+		if na := e.notApplicableIn(err); na != nil {
 			ex.Detail = na.Error()
 			return ex
 		}
@@ -193,10 +192,10 @@ func (e *env) inline(t parse.Text) (Value, bool) {
 	if x == nil {
 		return Value{}, false
 	}
+	e.na = nil
 	v, err := x.Eval(e.vars)
 	if err != nil {
-		var na notApplicable
-		if errors.As(err, &na) {
+		if na := e.notApplicableIn(err); na != nil {
 			return Value{Null: true, Str: na.Error()}, true
 		}
 		e.exprError(t, err)

@@ -23,6 +23,9 @@ type env struct {
 	// results answers result functions; nil until the comparisons are done.
 	results *resultFuncs
 	cache   map[string]*expr.Expr
+	// na is the measure that did not apply in the evaluation under way
+	// (see notApplicableIn).
+	na *notApplicable
 }
 
 // factorFuncs are the compound-interest factors callable in expressions,
@@ -63,7 +66,12 @@ func newEnv(file string, errs *parse.ErrorList) *env {
 			if e.results == nil {
 				return nil, fmt.Errorf("%s() reads a computed result and can be used only in expect blocks and inline values", name)
 			}
-			return e.results.call(name, args)
+			v, err := e.results.call(name, args)
+			var na notApplicable
+			if errors.As(err, &na) {
+				e.na = &na
+			}
+			return v, err
 		}
 	}
 	e.opts = expr.Options{Funcs: funcs, IDArgFuncs: resultNames}
@@ -302,4 +310,16 @@ func (e *env) checkDistribution(src *parse.Distribution, d *Distribution) bool {
 		}
 	}
 	return true
+}
+
+// notApplicableIn returns the measure that did not apply in an evaluation
+// that failed with err, or nil. Fix (tests): the expression layer turns a
+// function's error into its own *expr.Error, which loses the
+// notApplicable type, so the result functions also record it in e.na.
+func (e *env) notApplicableIn(err error) *notApplicable {
+	var na notApplicable
+	if errors.As(err, &na) {
+		return &na
+	}
+	return e.na
 }

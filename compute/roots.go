@@ -112,7 +112,64 @@ func mergeRoots(roots []float64) []float64 {
 //
 // found by RatesOfReturn. Flows that are all zero have none.
 func FlowRates(flows []float64) []float64 {
-	return RatesOfReturn(func(r float64) float64 { return NPV(r, flows) }, FlowRateLow, FlowRateHigh)
+	f := func(r float64) float64 { return NPV(r, flows) }
+	// Fix (speed, see bench_test.go): flows with one change of sign have
+	// exactly one rate (SignChanges), so a binary search over the scanning
+	// grid finds the interval the full scan would, in a dozen evaluations
+	// instead of rateGridIntervals.
+	if SignChanges(flows) == 1 {
+		if roots, ok := oneRate(f, FlowRateLow, FlowRateHigh); ok {
+			return roots
+		}
+	}
+	return RatesOfReturn(f, FlowRateLow, FlowRateHigh)
+}
+
+// oneRate returns the rate in (lo, hi] of f, which has exactly one root in
+// (-1, +Inf) where it changes sign: a binary search for the change of sign
+// over the grid of RatesOfReturn, then Root on that interval. ok is false,
+// for the caller to scan instead, when f is NaN at a point or Root fails.
+func oneRate(f func(r float64) float64, lo, hi float64) ([]float64, bool) {
+	const n = rateGridIntervals
+	a0, a1 := math.Log1p(lo), math.Log1p(hi)
+	grid := func(k int) float64 { return math.Expm1(a0 + float64(k)*(a1-a0)/n) }
+	ka, kb := 0, n
+	fa, fb := f(lo), f(hi)
+	switch {
+	case math.IsNaN(fa) || math.IsNaN(fb):
+		return nil, false
+	case fb == 0:
+		return []float64{hi}, true
+	case fa == 0 || (fa < 0) == (fb < 0):
+		return nil, true // the one root is at or below lo, or above hi
+	}
+	for kb-ka > 1 {
+		k := (ka + kb) / 2
+		r := grid(k)
+		fk := f(r)
+		switch {
+		case math.IsNaN(fk):
+			return nil, false
+		case fk == 0:
+			return []float64{r}, true
+		case (fk < 0) == (fa < 0):
+			ka, fa = k, fk
+		default:
+			kb = k
+		}
+	}
+	ra, rb := lo, hi
+	if ka > 0 {
+		ra = grid(ka)
+	}
+	if kb < n {
+		rb = grid(kb)
+	}
+	r, ok := Root(f, ra, rb)
+	if !ok {
+		return nil, false
+	}
+	return []float64{r}, true
 }
 
 // SignChanges returns the number of changes of sign in flows, zeros
