@@ -92,7 +92,7 @@ func (e *env) alternative(src *parse.Alternative) *Alternative {
 				it.To = y
 			}
 			if good && a.Life > 0 && it.From >= a.Life {
-				e.errs.Add(l.Pos, "the first %s every %d years falls at year %d, not before the end of the life (%d years); periodic amounts fall strictly before the end of each life", l.Sign, k, it.From, a.Life)
+				e.errs.Add(l.Pos, "the first amount of \"%s\" falls at year %d, not before the end of the life (%d years); periodic amounts fall strictly before the end of each life", l.Label, it.From, a.Life)
 				good = false
 			}
 		case parse.Salvage:

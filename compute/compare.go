@@ -77,6 +77,8 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 		}
 	case front != nil:
 		c.Rate = *front
+	case e.frontRateFailed:
+		ok = false // the front matter's rate is reported already
 	default:
 		e.errs.Add(src.Pos, "compare %s has no interest rate; give \"rate: 7%%\" in the front matter or in the block", src.ID)
 		ok = false
@@ -304,7 +306,9 @@ func evalFinite(r *Result, a *Alternative, i float64, n int) {
 	}
 	r.Work = finiteWork(a, i, n, r.PW)
 	rateOfReturn(r, net, nil)
-	r.Payback, r.DiscPayback = payback(r.Flows, i)
+	if a.HasBenefits {
+		r.Payback, r.DiscPayback = payback(r.Flows, i)
+	}
 }
 
 func evalPerpetual(r *Result, a *Alternative, i float64) {
@@ -346,8 +350,6 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 	}
 	r.Flows = a.Flows(show, false)
 	discount(r.Flows, i)
-	long := a.Flows(MaxRepeatYears, false)
-	discount(long, i)
 	signs := a.Flows(2*show, false)
 	// Fix (speed, see bench_test.go): with a life, the capitalized worth
 	// PW₁(x) (A/P, x, L) / x has the roots of one cycle's present worth
@@ -365,7 +367,12 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 		}
 	}
 	rateOfReturn(r, netFlows(signs), pwAt)
-	r.Payback, r.DiscPayback = payback(long, i)
+	if a.HasBenefits {
+		// Payback only means something where benefits pay back a cost.
+		long := a.Flows(MaxRepeatYears, false)
+		discount(long, i)
+		r.Payback, r.DiscPayback = payback(long, i)
+	}
 }
 
 // displayYears is how many years of a service with no life to tabulate:

@@ -31,6 +31,7 @@ func Compute(memo *parse.Memo) (*Report, error) {
 	}
 	if fm.Rate != nil {
 		rep.Rate, _ = e.rate(fm.Rate, "rate", rep.Inflation)
+		e.frontRateFailed = rep.Rate == nil
 	}
 	if fm.TaxRate != nil {
 		if r, ok := e.rate(fm.TaxRate, "tax rate", nil); ok {
@@ -178,16 +179,38 @@ func (e *env) expectation(cond parse.Text) *Expectation {
 	}
 	b, ok := v.(bool)
 	if !ok {
-		e.errs.Add(cond.Pos, "an expectation must be a condition that holds or fails (e.g. pw(steel) > -1.5M), but this gives %v", v)
+		e.errs.Add(cond.Pos, "an expectation must be a condition that holds or fails (e.g. pw(steel) > -1.5M), but this gives a value (%s); compare it with something", valueText(v))
 		return nil
 	}
 	ex.Passed = b
 	return ex
 }
 
-// inline evaluates an inline value and decides how to format it from the
-// functions it calls.
+// valueText shows an expression's value in a message.
+func valueText(v any) string {
+	if f, ok := v.(float64); ok {
+		return trimFloat(f)
+	}
+	return fmt.Sprint(v)
+}
+
+// inlineKinds are the format hints an inline value may end with:
+// `= overhaul * 2 as money`.
+var inlineKinds = map[string]ValueKind{
+	"money": Money, "percent": Percent, "ratio": Ratio, "years": Years, "number": Number,
+}
+
+// inline evaluates an inline value and decides how to format it: from a
+// trailing hint ("as money", "as percent", "as ratio", "as years",
+// "as number"), else from the functions it calls.
 func (e *env) inline(t parse.Text) (Value, bool) {
+	hint, hinted := Number, false
+	if i := strings.LastIndex(t.Src, " as "); i >= 0 {
+		if k, ok := inlineKinds[strings.TrimSpace(t.Src[i+4:])]; ok {
+			hint, hinted = k, true
+			t.Src = strings.TrimSpace(t.Src[:i])
+		}
+	}
 	x := e.compile(t, true)
 	if x == nil {
 		return Value{}, false
@@ -210,6 +233,9 @@ func (e *env) inline(t parse.Text) (Value, bool) {
 		}
 		return Value{Kind: Text, Str: v}, true
 	case float64:
+		if hinted {
+			return Value{Kind: hint, Num: v}, true
+		}
 		return Value{Kind: kindOf(x), Num: v}, true
 	}
 	return Value{Kind: Text, Str: fmt.Sprint(v)}, true

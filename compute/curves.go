@@ -43,37 +43,53 @@ func curveSpan(c *Comparison) (lo, hi float64) {
 	return lo, hi
 }
 
-// pwAt is an alternative's present worth at rate x over the comparison's
-// horizon.
-func pwAt(c *Comparison, r *Result, x float64) float64 {
+// worthFunc returns an alternative's present worth as a function of the
+// rate over the comparison's horizon (its net flows taken once).
+func worthFunc(c *Comparison, r *Result) func(float64) float64 {
 	if c.Horizon.Perpetual() {
-		return r.Alt.perpetualPW(x)
+		return r.Alt.perpetualPW
 	}
-	return NPV(x, netFlows(r.Flows))
+	net := netFlows(r.Flows)
+	return func(x float64) float64 { return NPV(x, net) }
 }
 
+// maxCrossoverAlternatives: up to this many alternatives, crossovers are
+// found between every pair; beyond it, only between the recommended
+// alternative and each other one (the pairs a reader asks about), which
+// keeps the work linear in the number of alternatives.
+const maxCrossoverAlternatives = 6
+
 // Curves samples each alternative's present worth over the chart's span
-// of rates (101 points) and finds the crossover rates between every pair.
+// of rates (101 points) and finds the crossover rates between pairs.
 func (c *Comparison) Curves() ([]Curve, []Crossover) {
 	lo, hi := curveSpan(c)
 	const n = 100
 	var curves []Curve
-	for _, r := range c.Results {
+	pw := make([]func(float64) float64, len(c.Results))
+	for k, r := range c.Results {
+		pw[k] = worthFunc(c, r)
+	}
+	for k, r := range c.Results {
 		cv := Curve{Alt: r.Alt.ID}
-		for k := 0; k <= n; k++ {
-			x := lo + (hi-lo)*float64(k)/n
+		for s := 0; s <= n; s++ {
+			x := lo + (hi-lo)*float64(s)/n
 			cv.Rates = append(cv.Rates, x)
-			cv.Worths = append(cv.Worths, pwAt(c, r, x))
+			cv.Worths = append(cv.Worths, pw[k](x))
 		}
 		curves = append(curves, cv)
 	}
 	var xs []Crossover
+	all := len(c.Results) <= maxCrossoverAlternatives
 	for i := 0; i < len(c.Results); i++ {
 		for j := i + 1; j < len(c.Results); j++ {
 			a, b := c.Results[i], c.Results[j]
-			f := func(x float64) float64 { return pwAt(c, a, x) - pwAt(c, b, x) }
+			if !all && a.Alt.ID != c.Recommended && b.Alt.ID != c.Recommended {
+				continue
+			}
+			fa, fb := pw[i], pw[j]
+			f := func(x float64) float64 { return fa(x) - fb(x) }
 			for _, root := range RatesOfReturn(f, math.Max(lo, -0.99), hi) {
-				xs = append(xs, Crossover{A: a.Alt.ID, B: b.Alt.ID, Rate: root, Worth: pwAt(c, a, root)})
+				xs = append(xs, Crossover{A: a.Alt.ID, B: b.Alt.ID, Rate: root, Worth: fa(root)})
 			}
 		}
 	}

@@ -23,6 +23,9 @@ type env struct {
 	// results answers result functions; nil until the comparisons are done.
 	results *resultFuncs
 	cache   map[string]*expr.Expr
+	// frontRateFailed is set when the front matter's rate could not be
+	// read (already reported), so comparisons do not report it missing.
+	frontRateFailed bool
 	// na is the measure that did not apply in the evaluation under way
 	// (see notApplicableIn).
 	na *notApplicable
@@ -80,7 +83,7 @@ func newEnv(file string, errs *parse.ErrorList) *env {
 
 func numArgs(name string, args []any, n int, sig string) ([]float64, error) {
 	if len(args) != n {
-		return nil, fmt.Errorf("%s%s takes %d values, got %d (write a space after each comma: a comma before three digits is a thousands separator)", name, sig, n, len(args))
+		return nil, fmt.Errorf("%s%s takes %d values, got %d", name, sig, n, len(args))
 	}
 	out := make([]float64, n)
 	for i, a := range args {
@@ -104,11 +107,23 @@ func posIn(t parse.Text, col int) parse.Pos {
 // compile compiles t, reporting errors at their position. allowResults says
 // whether result functions may be called.
 func (e *env) compile(t parse.Text, allowResults bool) *expr.Expr {
+	return e.compileFor(t, allowResults, "")
+}
+
+// compileFor is compile with the name of the value being read, which
+// prefixes a syntax error ("rate: ...").
+func (e *env) compileFor(t parse.Text, allowResults bool, what string) *expr.Expr {
 	x, ok := e.cache[t.Src]
 	if !ok {
 		var err error
 		x, err = expr.Compile(t.Src, e.opts)
 		if err != nil {
+			if what != "" {
+				var xe *expr.Error
+				if errors.As(err, &xe) {
+					err = &expr.Error{Col: xe.Col, Msg: fmt.Sprintf("cannot read %s %q: %s", what, t.Src, xe.Msg)}
+				}
+			}
 			e.exprError(t, err)
 			return nil
 		}

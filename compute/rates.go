@@ -41,6 +41,12 @@ func (e *env) rate(rs *parse.RateSpec, what string, inflation *Rate) (*Rate, boo
 	if rs == nil {
 		return nil, false
 	}
+	// A rate that cannot be read says it is the rate ("cannot read rate
+	// \"seven percent\": ..."): its words are easily mistaken for a
+	// compounding.
+	if e.compileFor(rs.Value, false, what) == nil {
+		return nil, false
+	}
 	v, ok := e.number(rs.Value, what)
 	if !ok {
 		return nil, false

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"sort"
 	"strings"
+
+	"worth/expr"
 )
 
 // notApplicable is returned by a result function whose measure does not
@@ -45,6 +47,9 @@ func (f *resultFuncs) comparison(name string, args []any, alt string) (*Comparis
 				ids = append(ids, k)
 			}
 			sort.Strings(ids)
+			if s := expr.Closest(id, ids); s != "" {
+				return nil, fmt.Errorf("%s: unknown comparison %q; did you mean %q?", name, id, s)
+			}
 			return nil, fmt.Errorf("%s: unknown comparison %q (comparisons: %s)", name, id, strings.Join(ids, ", "))
 		}
 		return c, nil
@@ -103,6 +108,14 @@ func (f *resultFuncs) call(name string, args []any) (any, error) {
 		return nil, fmt.Errorf("%s: the alternative is named by its id, e.g. %s(steel)", name, name)
 	}
 	if _, ok := f.byID[alt]; !ok {
+		ids := make([]string, 0, len(f.byID))
+		for k := range f.byID {
+			ids = append(ids, k)
+		}
+		sort.Strings(ids)
+		if s := expr.Closest(alt, ids); s != "" {
+			return nil, fmt.Errorf("%s: unknown alternative %q; did you mean %q?", name, alt, s)
+		}
 		return nil, fmt.Errorf("%s: unknown alternative %q", name, alt)
 	}
 	c, err := f.comparison(name, args[1:], alt)
