@@ -62,7 +62,11 @@ const MaxLogoBytes = 5 << 20
 func PDF(doc *Doc, opt PDFOptions) ([]byte, error) {
 	w := newPDFWriter(doc)
 	if doc.Logo != "" {
-		lg, err := pdfLoadLogo(opt.BaseDir, doc.Logo)
+		base := opt.BaseDir
+		if base == "" {
+			base = doc.Dir
+		}
+		lg, err := pdfLoadLogo(base, doc.Logo)
 		if err != nil {
 			return nil, err
 		}
@@ -205,10 +209,19 @@ func pdfStrWidth(s string, fc pdfFace, size float64) float64 {
 	for _, r := range s {
 		if w := m.width(r); w > 0 {
 			t += w
+		} else if iw, ok := pdfIcons[r]; ok && w < 0 {
+			t += iw
 		}
 	}
 	return t * size / 1000
 }
+
+// pdfIcons are signs the fonts lack that the writer draws itself, with
+// their widths in thousandths of an em: a tick, a cross, a warning
+// triangle.
+var pdfIcons = map[rune]float64{'✓': 760, '✔': 760, '✗': 700, '✘': 700, '⚠': 900}
+
+const pdfIconRunes = "✓✔✗✘⚠"
 
 // pdfNarrowHyphen returns a copy of a TrueType font whose hyphen-minus is
 // drawn with the font's own hyphen glyph, the one it gives the soft hyphen.
@@ -401,6 +414,8 @@ func pdfClean(s string, fc pdfFace) string {
 			b.WriteByte('?')
 		case m.width(r) >= 0:
 			b.WriteRune(r)
+		case pdfIcons[r] > 0:
+			b.WriteRune(r)
 		default:
 			if t, ok := pdfStandIns[r]; ok {
 				b.WriteString(t)
@@ -432,6 +447,7 @@ var (
 	pdfColCodeFill = pdfRgb{244, 245, 247}
 	pdfColEqFill   = pdfRgb{246, 248, 250}
 	pdfColRecFill  = pdfRgb{231, 244, 237}
+	pdfColPick     = pdfRgb{238, 247, 241} // the recommended column of a table
 	pdfColRecBar   = pdfRgb{30, 120, 80}
 	pdfColWarnFill = pdfRgb{253, 240, 228}
 	pdfColWarnBar  = pdfRgb{196, 82, 18}
@@ -605,9 +621,53 @@ func (w *pdfWriter) text(x, y float64, s string, fc pdfFace, size float64, c pdf
 	if s == "" {
 		return
 	}
+	if strings.ContainsAny(s, pdfIconRunes) {
+		// Signs the font lacks are drawn between runs of text.
+		start := 0
+		for i, r := range s {
+			if pdfIcons[r] == 0 || pdfFaceOf(fc).width(r) >= 0 {
+				continue
+			}
+			if start < i {
+				w.text(x, y, s[start:i], fc, size, c)
+				x += pdfStrWidth(s[start:i], fc, size)
+			}
+			w.icon(r, x, y, size)
+			x += pdfIcons[r] * size / 1000
+			start = i + utf8.RuneLen(r)
+		}
+		if start < len(s) {
+			w.text(x, y, s[start:], fc, size, c)
+		}
+		return
+	}
 	w.setFont(fc, size)
 	w.setTextColor(c)
-	w.pdf.Text(x, y, s)
+	w.pdf.Text(x, y, strings.ReplaceAll(s, "\u00a0", " "))
+}
+
+// icon draws one of pdfIcons with its left edge at x on baseline y.
+func (w *pdfWriter) icon(r rune, x, y, size float64) {
+	em := size
+	w.pdf.SetLineCapStyle("round")
+	w.pdf.SetLineJoinStyle("round")
+	switch r {
+	case '✓', '✔':
+		w.setDraw(pdfColBenefit, em*0.12)
+		w.polyline([]fpdf.PointType{{X: x + em*0.1, Y: y - em*0.33}, {X: x + em*0.3, Y: y - em*0.08}, {X: x + em*0.66, Y: y - em*0.66}})
+	case '✗', '✘':
+		w.setDraw(pdfColCost, em*0.12)
+		w.pdf.Line(x+em*0.14, y-em*0.62, x+em*0.56, y-em*0.06)
+		w.pdf.Line(x+em*0.56, y-em*0.62, x+em*0.14, y-em*0.06)
+	case '⚠':
+		w.setFill(pdfColWarnBar)
+		w.pdf.Polygon([]fpdf.PointType{{X: x + em*0.45, Y: y - em*0.74}, {X: x + em*0.86, Y: y + em*0.02}, {X: x + em*0.04, Y: y + em*0.02}}, "F")
+		w.setFill(pdfRgb{255, 255, 255})
+		w.pdf.Rect(x+em*0.41, y-em*0.5, em*0.08, em*0.3, "F")
+		w.pdf.Rect(x+em*0.41, y-em*0.14, em*0.08, em*0.08, "F")
+	}
+	w.pdf.SetLineCapStyle("butt")
+	w.pdf.SetLineJoinStyle("miter")
 }
 
 // textRight draws s ending at x.
@@ -984,10 +1044,20 @@ func (w *pdfWriter) paragraph(text []Inline, size float64, c pdfRgb, indent floa
 	w.after(5)
 }
 
-// emitLines draws laid-out lines one by one, breaking pages between them.
+// emitLines draws laid-out lines one by one, breaking pages between them,
+// never leaving the first line of several alone at the foot of a page nor
+// the last alone at the top of the next.
 func (w *pdfWriter) emitLines(lines []pdfTextLine, lead float64, c pdfRgb) {
-	for _, ln := range lines {
-		h := math.Max(lead, ln.size*pdfBodyLead)
+	height := func(k int) float64 { return math.Max(lead, lines[k].size*pdfBodyLead) }
+	n := len(lines)
+	for i, ln := range lines {
+		h := height(i)
+		switch {
+		case i == 0 && n >= 2:
+			w.ensure(h + height(1))
+		case i >= 2 && i == n-2 && w.y+h <= w.bot && w.y+h+height(n-1) > w.bot:
+			w.newPage()
+		}
 		w.ensure(h)
 		base := pdfBaseline(w.y, h, ln.size)
 		w.flushMarker(base)
@@ -1345,6 +1415,29 @@ func (w *pdfWriter) calloutRows(c *Callout) []pdfBoxRow {
 			w.text(x, pdfBaseline(y, lh, pdfBodySize), s, fRegular, pdfBodySize, pdfColText)
 		}})
 	}
+	if len(c.Facts) > 0 {
+		rows = append(rows, pdfBoxRow{h: 5})
+		var kw float64
+		for _, f := range c.Facts {
+			kw = math.Max(kw, pdfStrWidth(pdfClean(f.Key, fBold), fBold, 8.5))
+		}
+		kw = math.Min(kw+10, width/3)
+		for _, f := range c.Facts {
+			h := 9.5 * 1.4
+			for k, l := range pdfWrapPlain(f.Value, fRegular, 9.5, width-kw) {
+				key, s := f.Key, l
+				if k > 0 {
+					key = ""
+				}
+				rows = append(rows, pdfBoxRow{h: h, draw: func(x, y float64) {
+					if key != "" {
+						w.text(x, pdfBaseline(y, h, 9.5), pdfFit(key, fBold, 8.5, kw-6), fBold, 8.5, pdfColMuted)
+					}
+					w.text(x+kw, pdfBaseline(y, h, 9.5), s, fRegular, 9.5, pdfColText)
+				}})
+			}
+		}
+	}
 	if len(c.Items) > 0 {
 		rows = append(rows, pdfBoxRow{h: 4})
 	}
@@ -1481,6 +1574,7 @@ func pdfSafeLink(s string) string {
 
 // layout breaks inline runs into lines of at most width points.
 func (w *pdfWriter) layout(runs []Inline, base pdfFace, size float64, width float64) []pdfTextLine {
+	width += 0.01
 	type token struct {
 		p     pdfPiece
 		brk   bool // hard break
@@ -1668,6 +1762,7 @@ func pdfWrapPlain(s string, fc pdfFace, size, width float64) []string {
 	if s == "" {
 		return nil
 	}
+	width += 0.01 // what was measured to fit, fits
 	var out []string
 	for _, para := range strings.Split(s, "\n") {
 		para = pdfClean(para, fc)
@@ -1771,6 +1866,9 @@ func pdfSubTable(t *Table, cols []int, ncol int) *Table {
 		return out
 	}
 	sub := &Table{Caption: t.Caption, Note: t.Note, Source: t.Source, BoldRows: t.BoldRows}
+	for _, c := range cols {
+		sub.BoldCols = append(sub.BoldCols, c < len(t.BoldCols) && t.BoldCols[c])
+	}
 	if len(t.Header) > 0 {
 		sub.Header = pick(t.Header)
 	}
@@ -1798,6 +1896,13 @@ func (w *pdfWriter) tableFitted(t *Table, ncol int, lay pdfTableLayout) {
 		return 'l'
 	}
 	bold := func(r int) bool { return r < len(t.BoldRows) && t.BoldRows[r] }
+	boldCol := func(c int) bool { return c < len(t.BoldCols) && t.BoldCols[c] }
+	cellFace := func(r, c int) pdfFace {
+		if bold(r) || boldCol(c) {
+			return fBold
+		}
+		return fRegular
+	}
 	cell := func(row []string, c int) string {
 		if c < len(row) {
 			return row[c]
@@ -1835,14 +1940,10 @@ func (w *pdfWriter) tableFitted(t *Table, ncol int, lay pdfTableLayout) {
 		capH += 3
 	}
 	rowLines := func(r int) ([][]string, float64) {
-		fc := fRegular
-		if bold(r) {
-			fc = fBold
-		}
 		n := 1
 		var ls [][]string
 		for c := 0; c < ncol; c++ {
-			l := wrapCell(cell(t.Rows[r], c), c, fc)
+			l := wrapCell(cell(t.Rows[r], c), c, cellFace(r, c))
 			ls = append(ls, l)
 			n = max(n, len(l))
 		}
@@ -1900,15 +2001,18 @@ func (w *pdfWriter) tableFitted(t *Table, ncol int, lay pdfTableLayout) {
 			w.setFill(pdfColZebra)
 			w.pdf.Rect(w.left, w.y, tw, h, "F")
 		}
-		fc := fRegular
 		if bold(r) {
-			fc = fBold
 			w.setDraw(pdfColMuted, 0.6)
 			w.pdf.Line(w.left, w.y, w.left+tw, w.y)
 		}
 		x := w.left
 		for c := 0; c < ncol; c++ {
-			w.cellText(x, w.y, lay, c, ls[c], align(c), fc, pdfColText)
+			if boldCol(c) {
+				// the recommended alternative's column, tinted
+				w.setFill(pdfColPick)
+				w.pdf.Rect(x, w.y, lay.widths[c], h, "F")
+			}
+			w.cellText(x, w.y, lay, c, ls[c], align(c), cellFace(r, c), pdfColText)
 			x += lay.widths[c]
 		}
 		w.decorate(w.y, w.y+h)
@@ -1984,8 +2088,8 @@ func pdfMeasureTable(t *Table, ncol int) pdfTableMeasure {
 	measure(t.Header, fBold, true)
 	for r, row := range t.Rows {
 		fc := fRegular
-		if r < len(t.BoldRows) && t.BoldRows[r] {
-			fc = fBold
+		if r < len(t.BoldRows) && t.BoldRows[r] || len(t.BoldCols) > 0 {
+			fc = fBold // the wider face, for rows and columns set in bold
 		}
 		measure(row, fc, false)
 	}

@@ -577,7 +577,7 @@ func TestPDFGlyphs(t *testing.T) {
 			}
 		}
 	}
-	if got := pdfClean("₹1,000 ✓ 中", fRegular); got != "INR 1,000 √ ?" {
+	if got := pdfClean("₹1,000 ✓ 中", fRegular); got != "INR 1,000 ✓ ?" {
 		t.Errorf("clean: %q", got)
 	}
 }
@@ -609,8 +609,19 @@ func TestPDFLongHorizon(t *testing.T) {
 	}
 }
 
+// BenchmarkPDF draws an example memo (the document built once, outside
+// the loop); BenchmarkPDFHandBuilt the hand-built test memo.
 func BenchmarkPDF(b *testing.B) {
-	doc := testDoc("USD")
+	path := "../examples/digester-gas.md"
+	if _, err := os.Stat(path); err != nil {
+		b.Skip("no example memo")
+	}
+	benchPDF(b, BuildDoc(loadReport(b, path), DocOptions{}))
+}
+
+func BenchmarkPDFHandBuilt(b *testing.B) { benchPDF(b, testDoc("USD")) }
+
+func benchPDF(b *testing.B, doc *Doc) {
 	b.ReportAllocs()
 	var n int
 	for b.Loop() {
@@ -659,4 +670,117 @@ func TestPDFWriteSamples(t *testing.T) {
 	}
 	doc := &Doc{Title: "Samples", Currency: "USD", Body: []Node{Chart{Kind: "cashflow", Title: "120 years", Arrows: a.arrows(f)}, tb}}
 	os.WriteFile(filepath.Join(dir, "samples.pdf"), buildPDF(t, doc, PDFOptions{}), 0o644)
+}
+
+// pdfOf builds a memo file into a PDF.
+func pdfOf(t testing.TB, path string, opt DocOptions) []byte {
+	t.Helper()
+	doc := BuildDoc(loadReport(t, path), opt)
+	out, err := PDF(doc, PDFOptions{BaseDir: filepath.Dir(path)})
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return out
+}
+
+// TestPDFMemos builds every test memo and example and reads the PDF back
+// with pdftotext: the key figures of each comparison, formatted, the
+// factor notation with the comparison's rate, the minus sign, the page
+// numbers; and pdfinfo's page count.
+func TestPDFMemos(t *testing.T) {
+	for _, p := range memoFiles(t) {
+		t.Run(filepath.Base(p), func(t *testing.T) {
+			rep := loadReport(t, p)
+			doc := BuildDoc(rep, DocOptions{})
+			b, err := PDF(doc, PDFOptions{BaseDir: filepath.Dir(p)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			c, err := PDF(BuildDoc(rep, DocOptions{}), PDFOptions{BaseDir: filepath.Dir(p)})
+			if err != nil || !bytes.Equal(b, c) {
+				t.Fatalf("two builds differ (%v)", err)
+			}
+			pages := pdfText(t, b)
+			// pdftotext -layout may break a long line; join words split
+			// by layout spacing for the searches below.
+			all := strings.Join(pages, "\n")
+			flat := strings.Join(strings.Fields(all), " ")
+			f := NewFormat(rep, true)
+			if !strings.Contains(flat, strings.Join(strings.Fields(doc.Title), " ")) {
+				t.Errorf("title %q not found", doc.Title)
+			}
+			for _, cmp := range rep.Comparisons {
+				for _, r := range cmp.Results {
+					pw, cost := f.Money(r.PW), f.Money(-r.PW)
+					if !strings.Contains(flat, pw) && !strings.Contains(flat, cost) {
+						t.Errorf("comparison %s: present worth of %s (%s) not found", cmp.ID, r.Alt.ID, pw)
+					}
+				}
+				rate := f.Rate(cmp.Rate.Effective)
+				if !regexp.MustCompile(`\((P/F|P/A|A/P|F/P|P/G|A/F|F/A|A/G), ` + regexp.QuoteMeta(rate) + `, (\d+|∞)\)`).MatchString(flat) {
+					t.Errorf("comparison %s: no factor in notation at %s", cmp.ID, rate)
+				}
+			}
+			if !strings.Contains(all, "−") {
+				t.Errorf("no minus sign (U+2212)")
+			}
+			if sym := rep.Currency.Symbol; !strings.Contains(all, sym) {
+				t.Errorf("currency sign %q not found", sym)
+			}
+			n := pdfPages(t, b)
+			if n < 3 || n > 40 {
+				t.Errorf("pdfinfo: %d pages", n)
+			}
+			if len(pages) != n {
+				t.Errorf("pdftotext found %d pages, pdfinfo %d", len(pages), n)
+			} else if last := pages[n-1]; !strings.Contains(last, fmt.Sprintf("page %d of %d", n, n)) {
+				t.Errorf("last page does not say page %d of %d", n, n)
+			}
+			if !strings.Contains(flat, "Appendix") {
+				t.Errorf("no appendix")
+			}
+			if strings.Contains(all, "\ufffd") {
+				t.Errorf("a replacement character in the text")
+			}
+			// The appendix alone, to attach to a proposal.
+			app, err := PDF(BuildDoc(rep, DocOptions{AppendixOnly: true}), PDFOptions{BaseDir: filepath.Dir(p)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if m := pdfPages(t, app); m >= n {
+				t.Errorf("appendix only: %d pages, the whole memo %d", m, n)
+			}
+		})
+	}
+}
+
+// The EUR test memo prints euro amounts.
+func TestPDFEuroMemo(t *testing.T) {
+	p := "testdata/conveyor.md"
+	if _, err := os.Stat(p); err != nil {
+		t.Skip("no EUR test memo")
+	}
+	all := strings.Join(pdfText(t, pdfOf(t, p, DocOptions{})), "\n")
+	if !regexp.MustCompile(`−?€\d{1,3}(,\d{3})+`).MatchString(all) {
+		t.Errorf("no euro amount like €1,234 in the EUR memo")
+	}
+	if strings.Contains(all, "$") {
+		t.Errorf("a dollar sign in the EUR memo")
+	}
+}
+
+// TestPDFWriteExamples writes every memo's PDF to WORTH_PDF_DIR, to look
+// at: WORTH_PDF_DIR=/tmp/pdf go test ./render -run Write, then
+// pdftoppm -png -r 60 /tmp/pdf/NAME.pdf /tmp/pdf/NAME.
+func TestPDFWriteExamples(t *testing.T) {
+	dir := os.Getenv("WORTH_PDF_DIR")
+	if dir == "" {
+		t.Skip("set WORTH_PDF_DIR to write the memos' PDFs there")
+	}
+	for _, p := range memoFiles(t) {
+		b := pdfOf(t, p, DocOptions{})
+		if err := os.WriteFile(filepath.Join(dir, strings.TrimSuffix(filepath.Base(p), ".md")+".pdf"), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
 }

@@ -40,7 +40,18 @@ var pdfSeriesStyles = []struct {
 	{pdfRgb{96, 104, 118}, []float64{8, 3}},
 }
 
-// chartHeight is the height a chart takes with its title.
+// chartNotes are the lines under a chart: its notes, then its source.
+func (w *pdfWriter) chartNotes(c *Chart) []string {
+	var out []string
+	for _, n := range c.Notes {
+		out = append(out, pdfWrapPlain(n, fItalic, pdfChartTextSize+0.5, w.righ-w.left)...)
+	}
+	return out
+}
+
+const pdfChartNoteLead = 10.5
+
+// chartHeight is the height a chart takes with its title and notes.
 func (w *pdfWriter) chartHeight(c *Chart) float64 {
 	h := 0.0
 	keyW := 0.0
@@ -57,6 +68,12 @@ func (w *pdfWriter) chartHeight(c *Chart) float64 {
 		h += 200
 	default:
 		h += 210 + w.legendHeight(c)
+	}
+	if n := len(w.chartNotes(c)); n > 0 {
+		h += 4 + float64(n)*pdfChartNoteLead
+	}
+	if c.Source != "" {
+		h += 11
 	}
 	return h
 }
@@ -81,7 +98,15 @@ func (w *pdfWriter) chart(c *Chart) {
 	} else if keyW > 0 {
 		y += 17
 	}
-	area := pdfRect{w.left, y, w.righ - w.left, w.y + h - y}
+	notes := w.chartNotes(c)
+	foot := 0.0
+	if len(notes) > 0 {
+		foot += 4 + float64(len(notes))*pdfChartNoteLead
+	}
+	if c.Source != "" {
+		foot += 11
+	}
+	area := pdfRect{w.left, y, w.righ - w.left, w.y + h - y - foot}
 	switch c.Kind {
 	case "cashflow":
 		w.cashflowChart(c, area)
@@ -89,6 +114,17 @@ func (w *pdfWriter) chart(c *Chart) {
 		w.xyChart(c, area, true)
 	default:
 		w.xyChart(c, area, false)
+	}
+	ny := area.y + area.h
+	if len(notes) > 0 {
+		ny += 4
+		for _, l := range notes {
+			w.text(w.left, ny+8, l, fItalic, pdfChartTextSize+0.5, pdfColMuted)
+			ny += pdfChartNoteLead
+		}
+	}
+	if c.Source != "" {
+		w.text(w.left, ny+9, pdfFit("Source: "+c.Source, fRegular, 7.5, w.righ-w.left), fRegular, 7.5, pdfColFaint)
 	}
 	w.decorate(w.y, w.y+h)
 	w.y += h
@@ -128,31 +164,61 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 	if xlabel == "" {
 		xlabel = "year"
 	}
-	// Horizontal: a little room left of year 0 and for the axis arrow.
-	x0 := a.x + 14
-	x1 := a.x + a.w - 34
+	xlabel = strings.ToLower(xlabel)
+	// The money scale: the document's ticks where it has them.
+	ylo, yhi := -maxDown, maxUp
+	ticks := c.YTicks
+	if c.YMax > c.YMin && c.YMin <= 0 && c.YMax >= 0 && len(ticks) > 0 {
+		ylo, yhi = c.YMin, c.YMax
+	} else {
+		step := pdfNiceStep(yhi-ylo, 4)
+		ylo = math.Floor(ylo/step-1e-9) * step
+		yhi = math.Ceil(yhi/step+1e-9) * step
+		lab := w.labeler("money", ylo, yhi, step)
+		ticks = nil
+		for v := ylo; v <= yhi+step*1e-6; v += step {
+			ticks = append(ticks, Tick{At: v, Label: lab.label(v)})
+		}
+	}
+	if yhi == ylo {
+		yhi = ylo + 1
+	}
+	var tickW float64
+	for _, t := range ticks {
+		tickW = math.Max(tickW, pdfStrWidth(pdfClean(t.Label, fRegular), fRegular, pdfChartTextSize-0.5))
+	}
+	// Horizontal: the scale's labels, a little room left of year 0, and
+	// the axis arrow with its label at the right.
+	x0 := a.x + tickW + 16
+	x1 := a.x + a.w - 36
 	step := (x1 - x0) / float64(last-first)
 	xAt := func(year int) float64 { return x0 + float64(year-first)*step }
-	// Vertical: label bands above and below, the scale strip at the foot.
+	// Vertical: label bands above and below, the year strip at the foot.
 	labelBand := 2 * (pdfChartTextSize + 3)
-	top := a.y + labelBand
 	scaleH := 14.0
+	top := a.y + labelBand
 	bottom := a.y + a.h - scaleH - labelBand
-	span := maxUp + maxDown
-	if span == 0 {
-		span = 1
+	scale := (bottom - top) / (yhi - ylo)
+	yAt := func(v float64) float64 { return top + (yhi-v)*scale }
+	axisY := yAt(0)
+	// Scale lines and labels.
+	for _, t := range ticks {
+		if t.At < ylo-1e-9 || t.At > yhi+1e-9 {
+			continue
+		}
+		y := yAt(t.At)
+		if t.At != 0 {
+			w.setDraw(pdfColGrid, 0.35)
+			w.pdf.Line(x0-6, y, x1, y)
+		}
+		w.textRight(x0-9, y+2.6, t.Label, fRegular, pdfChartTextSize-0.5, pdfColFaint)
 	}
-	scale := (bottom - top) / span
-	axisY := top + maxUp*scale
-	if maxUp == 0 {
-		axisY = top + 6
-		scale = (bottom - axisY) / span
-	}
-	if maxDown == 0 {
-		axisY = bottom - 6
-		scale = (axisY - top) / span
-	}
-	// Year scale at the foot, thinned to pdfFit.
+	// The time axis with its arrow.
+	w.setDraw(pdfColAxis, 0.7)
+	w.pdf.Line(x0-6, axisY, x1+22, axisY)
+	w.setFill(pdfColAxis)
+	w.pdf.Polygon([]fpdf.PointType{{X: x1 + 27, Y: axisY}, {X: x1 + 20, Y: axisY - 2.6}, {X: x1 + 20, Y: axisY + 2.6}}, "F")
+	// Year strip at the foot, thinned to fit.
 	yearW := pdfStrWidth(strconv.Itoa(max(pdfIabs(last), pdfIabs(first))), fRegular, pdfChartTextSize) + 6
 	every := 1
 	for _, k := range []int{1, 2, 5, 10, 20, 25, 50, 100, 200, 250, 500, 1000} {
@@ -161,38 +227,37 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 			break
 		}
 	}
-	sy := a.y + a.h - 4
-	w.setDraw(pdfColAxis, 0.6)
-	w.pdf.Line(x0-8, axisY, x1+20, axisY)
-	w.setFill(pdfColAxis)
-	w.pdf.Polygon([]fpdf.PointType{{X: x1 + 24, Y: axisY}, {X: x1 + 18, Y: axisY - 2.5}, {X: x1 + 18, Y: axisY + 2.5}}, "F")
+	sy := a.y + a.h - 3
 	w.setDraw(pdfColRule, 0.4)
 	w.pdf.Line(x0, sy-10, x1, sy-10)
 	lastLabel := math.Inf(-1)
 	for yr := first; yr <= last; yr++ {
 		x := xAt(yr)
+		major := yr%every == 0 || yr == first
 		tick := 1.5
-		if yr%every == 0 || yr == first {
+		if major {
 			tick = 3
 		}
 		w.setDraw(pdfColAxis, 0.4)
 		w.pdf.Line(x, axisY-tick, x, axisY+tick)
 		w.setDraw(pdfColRule, 0.4)
 		w.pdf.Line(x, sy-10, x, sy-10+tick)
-		if yr%every == 0 || yr == first || yr == last {
+		if major || yr == last {
 			s := strconv.Itoa(yr)
 			lw := pdfStrWidth(s, fRegular, pdfChartTextSize)
 			if x-lw/2 < lastLabel+4 {
 				continue
 			}
-			if yr != last && xAt(last)-pdfStrWidth(strconv.Itoa(last), fRegular, pdfChartTextSize)/2 < x+lw/2+4 && (last-first)%every != 0 {
-				continue // leave room for the last year's label
+			if yr != last && xAt(last)-pdfStrWidth(strconv.Itoa(last), fRegular, pdfChartTextSize)/2 < x+lw/2+4 {
+				continue // leave room for the last year's number
 			}
 			w.textCenter(x, sy, s, fRegular, pdfChartTextSize, pdfColMuted)
 			lastLabel = x + lw/2
 		}
 	}
-	// The arrows.
+	w.text(math.Max(lastLabel+5, x1+10), sy, xlabel, fItalic, pdfChartTextSize, pdfColMuted)
+	// The arrows, to scale (an amount too small to see is drawn 1.5 pt
+	// long so that its year is not mistaken for an empty one).
 	shaft := math.Min(1.2, math.Max(0.35, step*0.25))
 	headW := math.Min(6, math.Max(1.6, step*0.7))
 	headL := math.Min(7, headW*1.3)
@@ -206,7 +271,7 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 		x := xAt(ar.Year)
 		l := math.Abs(ar.Amount) * scale
 		if ar.Amount != 0 && l < 1.5 {
-			l = 1.5 // visible, if not quite to scale
+			l = 1.5
 		}
 		col := pdfColBenefit
 		up := ar.Amount > 0
@@ -232,12 +297,10 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 			occupied = append(occupied, pdfRect{x - headW/2, axisY, headW, ty - axisY})
 		}
 	}
-	// The axis label, right of the last year's number.
-	w.text(math.Max(lastLabel+5, x1+10), sy, xlabel, fItalic, pdfChartTextSize, pdfColMuted)
 	// Labels: the first arrow with each label text first, stacked clear
-	// of the arrows if need be; then the repeats, only where they pdfFit
+	// of the arrows if need be; then the repeats, only where they fit
 	// beside their arrows, so that a long horizon is thinned rather than
-	// crowded.
+	// crowded. A long label takes two lines.
 	var firsts, repeats []int
 	seen := map[string]bool{}
 	for i, ar := range c.Arrows {
@@ -250,30 +313,37 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 			repeats = append(repeats, i)
 		}
 	}
-	lh := pdfChartTextSize + 2
+	const ts = pdfChartTextSize
+	lh := ts + 2
 	place := func(i, rows int) {
 		ar := c.Arrows[i]
 		t := tips[i]
-		s := pdfClean(ar.Label, fRegular)
-		lw := pdfStrWidth(s, fRegular, pdfChartTextSize)
+		lines := pdfWrapPlain(ar.Label, fRegular, ts, 150)
+		var lw float64
+		for _, l := range lines {
+			lw = math.Max(lw, pdfStrWidth(l, fRegular, ts))
+		}
+		bh := lh * float64(len(lines))
 		lx := t.x - lw/2
-		lx = math.Max(a.x, math.Min(lx, a.x+a.w-lw))
+		lx = math.Max(x0-4, math.Min(lx, a.x+a.w-lw)) // clear of the scale
 		for row := 0; row < rows; row++ {
 			var r pdfRect
 			if t.up {
-				r = pdfRect{lx - 1, t.y - 3 - lh*float64(row+1), lw + 2, lh}
+				r = pdfRect{lx - 1, t.y - 3 - bh - lh*float64(row), lw + 2, bh}
 				if r.y < a.y {
 					return
 				}
 			} else {
-				r = pdfRect{lx - 1, t.y + 3 + lh*float64(row), lw + 2, lh}
+				r = pdfRect{lx - 1, t.y + 3 + lh*float64(row), lw + 2, bh}
 				if r.y+r.h > a.y+a.h-scaleH {
 					return
 				}
 			}
+			// labels keep a little apart, so two never read as one
+			wide := pdfRect{r.x - 4, r.y - 1, r.w + 8, r.h + 2}
 			clash := false
 			for _, o := range occupied {
-				if r.overlaps(o) {
+				if wide.overlaps(o) {
 					clash = true
 					break
 				}
@@ -291,7 +361,9 @@ func (w *pdfWriter) cashflowChart(c *Chart, a pdfRect) {
 					w.pdf.Line(t.x, r.y, t.x, t.y+1)
 				}
 			}
-			w.text(r.x+1, r.y+pdfChartTextSize, s, fRegular, pdfChartTextSize, pdfColText)
+			for k, l := range lines {
+				w.text(r.x+1, r.y+ts+lh*float64(k), l, fRegular, ts, pdfColText)
+			}
 			return
 		}
 	}
@@ -518,13 +590,30 @@ func (w *pdfWriter) xyChart(c *Chart, a pdfRect, bars bool) {
 	if c.XFormat == "year" && xstep < 1 {
 		xstep = 1
 	}
-	ylab := w.labeler(c.YFormat, ylo, yhi, ystep)
-	xlab := w.labeler(c.XFormat, xlo, xhi, xstep)
+	// The ticks: the document's, computed once for every writer, where it
+	// has them; else round steps of our own.
+	var xticks, yticks []Tick
+	if !bars && c.XMax > c.XMin && len(c.XTicks) > 0 {
+		xlo, xhi, xticks = c.XMin, c.XMax, c.XTicks
+	} else {
+		xlab := w.labeler(c.XFormat, xlo, xhi, xstep)
+		for v := math.Ceil(xlo/xstep-1e-9) * xstep; v <= xhi+xstep*1e-6; v += xstep {
+			xticks = append(xticks, Tick{At: v, Label: xlab.label(v)})
+		}
+	}
+	if c.YMax > c.YMin && len(c.YTicks) > 0 {
+		ylo, yhi, yticks = c.YMin, c.YMax, c.YTicks
+	} else {
+		ylab := w.labeler(c.YFormat, ylo, yhi, ystep)
+		for v := ylo; v <= yhi+ystep*1e-6; v += ystep {
+			yticks = append(yticks, Tick{At: v, Label: ylab.label(v)})
+		}
+	}
 	// Plot area: y tick labels on the left, x ticks and label below,
 	// legend at the foot.
 	var yTickW float64
-	for v := ylo; v <= yhi+ystep*1e-6; v += ystep {
-		yTickW = math.Max(yTickW, pdfStrWidth(ylab.label(v), fRegular, pdfChartTextSize))
+	for _, t := range yticks {
+		yTickW = math.Max(yTickW, pdfStrWidth(pdfClean(t.Label, fRegular), fRegular, pdfChartTextSize))
 	}
 	legendH := w.legendHeight(c)
 	top := a.y + 14 // the y label sits above the plot
@@ -541,11 +630,14 @@ func (w *pdfWriter) xyChart(c *Chart, a pdfRect, bars bool) {
 	px := func(x float64) float64 { return plot.x + (x-xlo)/(xhi-xlo)*plot.w }
 	py := func(y float64) float64 { return plot.y + plot.h - (y-ylo)/(yhi-ylo)*plot.h }
 	// Grid and y ticks.
-	for v := ylo; v <= yhi+ystep*1e-6; v += ystep {
-		y := py(v)
+	for _, t := range yticks {
+		if t.At < ylo-1e-9*(yhi-ylo) || t.At > yhi+1e-9*(yhi-ylo) {
+			continue
+		}
+		y := py(t.At)
 		w.setDraw(pdfColGrid, 0.4)
 		w.pdf.Line(plot.x, y, plot.x+plot.w, y)
-		w.textRight(plot.x-4, y+pdfChartTextSize*0.35, ylab.label(v), fRegular, pdfChartTextSize, pdfColMuted)
+		w.textRight(plot.x-4, y+pdfChartTextSize*0.35, t.Label, fRegular, pdfChartTextSize, pdfColMuted)
 	}
 	if ylo < 0 && yhi > 0 {
 		w.setDraw(pdfColAxis, 0.6)
@@ -556,11 +648,14 @@ func (w *pdfWriter) xyChart(c *Chart, a pdfRect, bars bool) {
 	w.pdf.Line(plot.x, plot.y+plot.h, plot.x+plot.w, plot.y+plot.h)
 	w.pdf.Line(plot.x, plot.y, plot.x, plot.y+plot.h)
 	lastRight := math.Inf(-1)
-	for v := math.Ceil(xlo/xstep-1e-9) * xstep; v <= xhi+xstep*1e-6; v += xstep {
-		x := px(v)
+	for _, t := range xticks {
+		if t.At < xlo-1e-9*(xhi-xlo) || t.At > xhi+1e-9*(xhi-xlo) {
+			continue
+		}
+		x := px(t.At)
 		w.setDraw(pdfColAxis, 0.5)
 		w.pdf.Line(x, plot.y+plot.h, x, plot.y+plot.h+3)
-		s := xlab.label(v)
+		s := pdfClean(t.Label, fRegular)
 		lw := pdfStrWidth(s, fRegular, pdfChartTextSize)
 		if x-lw/2 > lastRight+3 {
 			w.textCenter(x, plot.y+plot.h+4+pdfChartTextSize, s, fRegular, pdfChartTextSize, pdfColMuted)
@@ -673,12 +768,14 @@ func (w *pdfWriter) xyChart(c *Chart, a pdfRect, bars bool) {
 		switch {
 		case m.HasX && !m.HasY && pdfFinite(m.X):
 			x := px(m.X)
+			taken = append(taken, pdfRect{x - 1.5, plot.y + pdfChartTextSize + 6, 3, plot.h})
 			w.setDraw(pdfColMuted, 0.5)
 			w.pdf.SetDashPattern([]float64{2, 2}, 0)
 			w.pdf.Line(x, plot.y, x, plot.y+plot.h)
 			w.pdf.SetDashPattern(nil, 0)
 		case m.HasY && !m.HasX && pdfFinite(m.Y):
 			y := py(m.Y)
+			taken = append(taken, pdfRect{plot.x, y - 1.5, plot.w * 0.7, 3})
 			w.setDraw(pdfColMuted, 0.5)
 			w.pdf.SetDashPattern([]float64{2, 2}, 0)
 			w.pdf.Line(plot.x, y, plot.x+plot.w, y)
@@ -688,7 +785,11 @@ func (w *pdfWriter) xyChart(c *Chart, a pdfRect, bars bool) {
 	for _, m := range c.Marks {
 		if m.HasX && m.HasY && pdfFinite(m.X) && pdfFinite(m.Y) {
 			x, y := px(m.X), py(m.Y)
-			w.setDraw(pdfColText, 0.8)
+			col := pdfColText
+			if m.Series >= 0 && m.Series < len(c.Series) && m.Kind != "" {
+				col = pdfSeriesStyles[m.Series%len(pdfSeriesStyles)].c
+			}
+			w.setDraw(col, 0.9)
 			w.setFill(pdfRgb{255, 255, 255})
 			w.pdf.Circle(x, y, 2.4, "FD")
 			taken = append(taken, pdfRect{x - 3, y - 3, 6, 6})
