@@ -20,7 +20,7 @@ import (
 const usage = `worth evaluates decision memos: Markdown with fenced cash-flow blocks.
 
 Usage:
-  worth build [-o FILE] [--format FORMAT] MEMO.md
+  worth build [-o FILE] [--format FORMAT] [options] MEMO.md
   worth check MEMO.md...
 
 Commands:
@@ -100,20 +100,57 @@ func load(path string) (*compute.Report, error) {
 	return rep, nil
 }
 
-// formats are the writers by name.
-var formats = map[string]func(*compute.Report) ([]byte, error){
-	"md":   func(r *compute.Report) ([]byte, error) { return render.Markdown(r), nil },
-	"json": render.JSON,
+// buildOptions are the build flags that shape the output.
+type buildOptions struct {
+	templateDir  string
+	allowHTML    bool
+	appendixOnly bool
+}
+
+// formats are the output formats by name.
+var formats = map[string]bool{"md": true, "json": true, "html": true, "pdf": true}
+
+// renderAll writes the report in each format asked for. The HTML and PDF
+// writers share one document model, built once.
+func renderAll(rep *compute.Report, fmts []string, opt buildOptions) ([][]byte, error) {
+	var doc *render.Doc
+	out := make([][]byte, len(fmts))
+	for i, f := range fmts {
+		var err error
+		switch f {
+		case "md":
+			out[i] = render.Markdown(rep)
+		case "json":
+			out[i], err = render.JSON(rep)
+		case "html", "pdf":
+			if doc == nil {
+				doc = render.BuildDoc(rep, render.DocOptions{AllowHTML: opt.allowHTML, AppendixOnly: opt.appendixOnly})
+			}
+			if f == "html" {
+				out[i], err = render.HTML(doc, render.HTMLOptions{TemplateDir: opt.templateDir})
+			} else {
+				out[i], err = render.PDF(doc, render.PDFOptions{BaseDir: filepath.Dir(rep.Memo.File)})
+			}
+		}
+		if err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
 }
 
 func build(args []string, stdout, stderr io.Writer) int {
 	fs := flag.NewFlagSet("build", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	out := fs.String("o", "", "write one file `FILE` (format from its extension: .md, .json); - writes to standard output")
-	format := fs.String("format", "", "output `FORMAT`: md or json (default: from the -o extension)")
+	out := fs.String("o", "", "write one file `FILE` (format from its extension: .html, .pdf, .md, .json); - writes to standard output")
+	format := fs.String("format", "", "output `FORMAT`: html, pdf, md or json (default: from the -o extension)")
+	var opt buildOptions
+	fs.StringVar(&opt.templateDir, "template", "", "HTML templates folder `DIR` of the organization's own (files named as the built-in ones)")
+	fs.BoolVar(&opt.allowHTML, "allow-html", false, "let raw HTML in the memo's prose through to the HTML report (script links stay blocked)")
+	fs.BoolVar(&opt.appendixOnly, "appendix-only", false, "write only the calculation appendix (HTML or PDF), to attach to a proposal")
 	fs.Usage = func() {
-		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] MEMO.md\n\n"+
-			"Computes the memo and writes its report. Without -o, writes MEMO.report.md and\nMEMO.json beside the memo. A memo with an error writes nothing and leaves earlier\noutput untouched.\n\nOptions:\n")
+		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] [options] MEMO.md\n\n"+
+			"Computes the memo and writes its report. Without -o, writes MEMO.html and\nMEMO.pdf beside the memo (with --format, MEMO.FORMAT; Markdown as MEMO.report.md).\nA memo with an error writes nothing and leaves earlier output untouched.\n\nOptions:\n")
 		fs.PrintDefaults()
 	}
 	pos, err := parseInterspersed(fs, args)
@@ -142,19 +179,33 @@ func build(args []string, stdout, stderr io.Writer) int {
 				fm = strings.TrimPrefix(strings.ToLower(filepath.Ext(*out)), ".")
 			}
 		}
-		if _, ok := formats[fm]; !ok {
-			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected md or json (use --format or an .md/.json file name)\n", fm)
+		if !formats[fm] {
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md or json (use --format or a file name ending in one of them)\n", fm)
 			return 2
 		}
 		targets = append(targets, target{*out, fm})
 	case *format != "":
-		if _, ok := formats[*format]; !ok {
-			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected md or json\n", *format)
+		if !formats[*format] {
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md or json\n", *format)
 			return 2
 		}
 		targets = append(targets, target{besideMemo(memoPath, *format), *format})
 	default:
-		targets = append(targets, target{besideMemo(memoPath, "md"), "md"}, target{besideMemo(memoPath, "json"), "json"})
+		targets = append(targets, target{besideMemo(memoPath, "html"), "html"}, target{besideMemo(memoPath, "pdf"), "pdf"})
+	}
+	if opt.appendixOnly {
+		for _, t := range targets {
+			if t.format != "html" && t.format != "pdf" {
+				fmt.Fprintf(stderr, "worth build: --appendix-only makes an HTML or PDF appendix, not %s\n", t.format)
+				return 2
+			}
+		}
+	}
+	if opt.templateDir != "" {
+		if st, err := os.Stat(opt.templateDir); err != nil || !st.IsDir() {
+			fmt.Fprintf(stderr, "worth build: --template %s is not a folder\n", opt.templateDir)
+			return 2
+		}
 	}
 	rep, err := load(memoPath)
 	if err != nil {
@@ -162,14 +213,14 @@ func build(args []string, stdout, stderr io.Writer) int {
 		return 2
 	}
 	// Render everything first; write only when all succeeded.
-	outputs := make([][]byte, len(targets))
+	fmts := make([]string, len(targets))
 	for i, t := range targets {
-		b, err := formats[t.format](rep)
-		if err != nil {
-			fmt.Fprintf(stderr, "worth build: %v\n", err)
-			return 2
-		}
-		outputs[i] = b
+		fmts[i] = t.format
+	}
+	outputs, err := renderAll(rep, fmts, opt)
+	if err != nil {
+		fmt.Fprintf(stderr, "worth build: %v\n", err)
+		return 2
 	}
 	for i, t := range targets {
 		if t.path == "-" {
@@ -291,7 +342,12 @@ func check(args []string, stdout, stderr io.Writer) int {
 			continue
 		}
 		if !*quiet {
-			fmt.Fprintf(stdout, "%s: ok, %d expectation%s hold\n", path, len(rep.Expectations), plural(len(rep.Expectations)))
+			n := len(rep.Expectations)
+			verb := "hold"
+			if n == 1 {
+				verb = "holds"
+			}
+			fmt.Fprintf(stdout, "%s: ok, %d expectation%s %s\n", path, n, plural(n), verb)
 		}
 	}
 	return code

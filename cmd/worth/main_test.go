@@ -153,9 +153,9 @@ func TestMalformedMemos(t *testing.T) {
 			dir := t.TempDir()
 			cp := filepath.Join(dir, name+".md")
 			copyFile(t, memo, cp)
-			beside := []string{name + ".json", name + ".md", name + ".report.md"}
-			writeFile(t, filepath.Join(dir, name+".report.md"), earlier)
-			writeFile(t, filepath.Join(dir, name+".json"), earlier)
+			beside := []string{name + ".html", name + ".md", name + ".pdf"}
+			writeFile(t, filepath.Join(dir, name+".html"), earlier)
+			writeFile(t, filepath.Join(dir, name+".pdf"), earlier)
 			code, _, stderr = worth("build", cp)
 			if code != 2 {
 				t.Errorf("build (outputs beside the memo): exit code %d, want 2", code)
@@ -163,7 +163,7 @@ func TestMalformedMemos(t *testing.T) {
 			if wantCp := strings.ReplaceAll(want, memo+":", cp+":"); stderr != wantCp {
 				t.Errorf("build (outputs beside the memo): standard error\n got:\n%s\nwant:\n%s", stderr, wantCp)
 			}
-			for _, f := range []string{name + ".report.md", name + ".json"} {
+			for _, f := range []string{name + ".html", name + ".pdf"} {
 				if got := readFile(t, filepath.Join(dir, f)); got != earlier {
 					t.Errorf("build (outputs beside the memo): %s was changed to:\n%s", f, got)
 				}
@@ -244,6 +244,9 @@ func TestGolden(t *testing.T) {
 	// No golden file may outlive its example.
 	if !*update {
 		for _, f := range listDir(t, golden) {
+			if st, err := os.Stat(filepath.Join(golden, f)); err == nil && st.IsDir() {
+				continue // another writer's goldens (html/)
+			}
 			memo := filepath.Join("examples", strings.TrimSuffix(strings.TrimSuffix(f, ".md"), ".json")+".md")
 			if _, err := os.Stat(memo); err != nil {
 				t.Errorf("testdata/golden/%s has no example %s", f, memo)
@@ -308,7 +311,7 @@ func TestCheckExitCodes(t *testing.T) {
 		stdout []string // substrings of standard output
 		stderr []string // substrings of standard error
 	}{
-		{[]string{good}, 0, []string{good + ": ok, 1 expectation hold"}, nil},
+		{[]string{good}, 0, []string{good + ": ok, 1 expectation holds"}, nil},
 		{[]string{"-q", good}, 0, nil, nil},
 		{[]string{fail}, 1, []string{fail + ":23:1: expectation fails: pw(b) > pw(a)"}, nil},
 		{[]string{bad}, 2, nil, []string{bad + ":8:1: unknown line \"frist cost\""}},
@@ -342,8 +345,8 @@ func TestCheckExitCodes(t *testing.T) {
 	}
 }
 
-// TestBuildOutputs: without -o, build writes NAME.report.md and NAME.json
-// beside the memo, the same bytes as -o - writes to standard output; -o
+// TestBuildOutputs: without -o, build writes NAME.html and NAME.pdf beside
+// the memo, the same bytes as -o - writes to standard output; -o
 // takes the format from the extension or from --format; an unknown format is
 // an error that writes nothing; a failing expectation is a warning.
 func TestBuildOutputs(t *testing.T) {
@@ -376,19 +379,29 @@ func TestBuildOutputs(t *testing.T) {
 		t.Errorf("JSON report: %+v", report)
 	}
 
-	// Without -o: both files beside the memo, nothing else.
+	// Without -o: the HTML and PDF memo beside the memo, nothing else.
 	if code, stdout, stderr := worth("build", memo); code != 0 || stdout != "" || stderr != "" {
 		t.Fatalf("build: exit code %d, stdout %q, stderr %q", code, stdout, stderr)
 	}
-	if got := listDir(t, dir); !slices.Equal(got, []string{"pumps.json", "pumps.md", "pumps.report.md"}) {
-		t.Fatalf("build wrote %v; want pumps.report.md and pumps.json beside pumps.md", got)
+	if got := listDir(t, dir); !slices.Equal(got, []string{"pumps.html", "pumps.md", "pumps.pdf"}) {
+		t.Fatalf("build wrote %v; want pumps.html and pumps.pdf beside pumps.md", got)
+	}
+	_, html, _ := worth("build", memo, "--format", "html", "-o", "-")
+	if got := readFile(t, filepath.Join(dir, "pumps.html")); got != html || !strings.HasPrefix(html, "<!DOCTYPE html>") {
+		t.Errorf("pumps.html differs from what --format html -o - writes, or is not HTML")
+	}
+	_, pdf, _ := worth("build", memo, "--format", "pdf", "-o", "-")
+	if got := readFile(t, filepath.Join(dir, "pumps.pdf")); got != pdf || !strings.HasPrefix(pdf, "%PDF-") {
+		t.Errorf("pumps.pdf differs from what --format pdf -o - writes, or is not a PDF")
+	}
+	// --format md beside the memo never overwrites the memo itself.
+	if code, _, stderr := worth("build", "--format", "md", memo); code != 0 {
+		t.Fatalf("build --format md: exit code %d\n%s", code, stderr)
 	}
 	if got := readFile(t, filepath.Join(dir, "pumps.report.md")); got != md {
 		t.Errorf("pumps.report.md differs from what -o - writes")
 	}
-	if got := readFile(t, filepath.Join(dir, "pumps.json")); got != js {
-		t.Errorf("pumps.json differs from what --format json -o - writes")
-	}
+	os.Remove(filepath.Join(dir, "pumps.report.md"))
 	if got := readFile(t, memo); got != goodMemo {
 		t.Errorf("build changed the memo itself")
 	}
@@ -477,6 +490,49 @@ func TestHelp(t *testing.T) {
 		}
 		if !strings.Contains(stdout+stderr, "Usage") {
 			t.Errorf("%v printed no usage:\n%s%s", args, stdout, stderr)
+		}
+	}
+}
+
+// TestBuildHTMLAndPDFOptions: --appendix-only writes only the calculation
+// appendix and only as HTML or PDF; --template must name a folder;
+// --allow-html lets raw HTML of the prose through.
+func TestBuildHTMLAndPDFOptions(t *testing.T) {
+	dir := t.TempDir()
+	memo := filepath.Join(dir, "pumps.md")
+	writeFile(t, memo, strings.Replace(goodMemo, "Best:", "<b>Raw</b> best:", 1))
+
+	code, full, stderr := worth("build", memo, "--format", "html", "-o", "-")
+	if code != 0 {
+		t.Fatalf("build --format html: exit %d\n%s", code, stderr)
+	}
+	code, appendix, stderr := worth("build", memo, "--appendix-only", "--format", "html", "-o", "-")
+	if code != 0 {
+		t.Fatalf("build --appendix-only: exit %d\n%s", code, stderr)
+	}
+	if !strings.Contains(full, "Raw") || strings.Contains(appendix, "Raw") {
+		t.Errorf("--appendix-only still holds the prose")
+	}
+	if !strings.Contains(appendix, "Appendix") || len(appendix) >= len(full) {
+		t.Errorf("--appendix-only did not write the appendix alone (%d bytes against %d)", len(appendix), len(full))
+	}
+	if strings.Contains(full, "<b>Raw</b>") {
+		t.Errorf("raw HTML of the prose reached the page without --allow-html")
+	}
+	_, allowed, _ := worth("build", memo, "--allow-html", "--format", "html", "-o", "-")
+	if !strings.Contains(allowed, "<b>Raw</b>") {
+		t.Errorf("--allow-html did not let raw HTML through")
+	}
+	out := filepath.Join(dir, "calc.pdf")
+	if code, _, stderr := worth("build", memo, "--appendix-only", "-o", out); code != 0 || !strings.HasPrefix(readFile(t, out), "%PDF-") {
+		t.Fatalf("build --appendix-only -o calc.pdf: exit %d\n%s", code, stderr)
+	}
+	for _, args := range [][]string{
+		{"build", memo, "--appendix-only", "--format", "md", "-o", "-"},
+		{"build", memo, "--template", filepath.Join(dir, "no-such-folder"), "-o", "-"},
+	} {
+		if code, stdout, _ := worth(args...); code != 2 || stdout != "" {
+			t.Errorf("%v: exit %d with %d bytes of output, want 2 and none", args, code, len(stdout))
 		}
 	}
 }
