@@ -18,6 +18,7 @@ import (
 	"errors"
 	"fmt"
 	"image"
+	"image/draw"
 	"image/jpeg"
 	"image/png"
 	"io"
@@ -488,6 +489,7 @@ type pdfWriter struct {
 	logo       *pdfLogoImage
 	inAppendix bool
 	lastGap    float64 // space left below the previous block
+	outline    int     // level of the last bookmark
 }
 
 type pdfListMarker struct {
@@ -981,12 +983,12 @@ func (w *pdfWriter) heading(h Heading) {
 		w.pdf.SetLink(id, w.y, w.pdf.PageNo())
 	}
 	if h.Level <= 3 {
+		// The outline: under the title, each level at most one below the
+		// one before it.
 		w.setFont(fBold, size)
-		level := h.Level - 1
-		if level < 0 {
-			level = 0
-		}
-		w.pdf.Bookmark(pdfClean(pdfPlainText(h.Text), fRegular), level+1, w.y)
+		level := min(max(h.Level, 1), w.outline+1)
+		w.outline = level
+		w.pdf.Bookmark(pdfClean(pdfPlainText(h.Text), fRegular), level, w.y)
 	}
 	w.emitLines(lines, size*1.3, color)
 	if h.Level <= 2 {
@@ -2312,8 +2314,8 @@ func pdfLoadLogo(base, path string) (*pdfLogoImage, error) {
 	if err != nil {
 		return nil, fail("cannot be read as an image: %v", err)
 	}
-	if cfg.Width <= 0 || cfg.Height <= 0 || cfg.Width > 10000 || cfg.Height > 10000 {
-		return nil, fail("is %d×%d pixels; at most 10000 on a side", cfg.Width, cfg.Height)
+	if cfg.Width <= 0 || cfg.Height <= 0 || cfg.Width > 8000 || cfg.Height > 8000 || cfg.Width*cfg.Height > 16<<20 {
+		return nil, fail("is %d×%d pixels; a logo may have at most 8000 on a side and 16 million in all", cfg.Width, cfg.Height)
 	}
 	if lg.typ == "PNG" && !pdfSimplePNG(data) {
 		// fpdf reads 8-bit, non-interlaced PNG; anything else is decoded
@@ -2323,11 +2325,7 @@ func pdfLoadLogo(base, path string) (*pdfLogoImage, error) {
 			return nil, fail("cannot be read as an image: %v", err)
 		}
 		nrgba := image.NewNRGBA(img.Bounds())
-		for y := img.Bounds().Min.Y; y < img.Bounds().Max.Y; y++ {
-			for x := img.Bounds().Min.X; x < img.Bounds().Max.X; x++ {
-				nrgba.Set(x, y, img.At(x, y))
-			}
-		}
+		draw.Draw(nrgba, nrgba.Bounds(), img, img.Bounds().Min, draw.Src)
 		var buf bytes.Buffer
 		if err := png.Encode(&buf, nrgba); err != nil {
 			return nil, fail("%v", err)

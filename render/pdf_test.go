@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"image"
 	"image/color"
+	"image/jpeg"
 	"image/png"
 	"math"
 	"os"
@@ -533,6 +534,9 @@ func TestPDFLogo(t *testing.T) {
 	memo := filepath.Join(dir, "memo")
 	must(os.MkdirAll(filepath.Join(memo, "img"), 0o755))
 	must(os.WriteFile(filepath.Join(memo, "img", "logo.png"), buf.Bytes(), 0o644))
+	var jb bytes.Buffer
+	must(jpeg.Encode(&jb, img, nil))
+	must(os.WriteFile(filepath.Join(memo, "img", "logo.jpg"), jb.Bytes(), 0o644))
 	must(os.WriteFile(filepath.Join(dir, "outside.png"), buf.Bytes(), 0o644))
 	must(os.WriteFile(filepath.Join(memo, "notes.txt"), []byte("not an image"), 0o644))
 	must(os.WriteFile(filepath.Join(memo, "fake.png"), []byte("\x89PNG\r\n\x1a\nnot really"), 0o644))
@@ -554,6 +558,10 @@ func TestPDFLogo(t *testing.T) {
 	b2, _ := PDF(doc, PDFOptions{BaseDir: memo})
 	if !bytes.Equal(b, b2) {
 		t.Errorf("two builds with a logo differ")
+	}
+	doc.Logo = "img/logo.jpg"
+	if b, err := PDF(doc, PDFOptions{BaseDir: memo}); err != nil || !bytes.Contains(b, []byte("/DCTDecode")) {
+		t.Errorf("a JPEG logo: %v", err)
 	}
 	for _, bad := range []string{"../outside.png", "img/../../outside.png", filepath.Join(dir, "outside.png"), "notes.txt", "fake.png", "big.png", "link.png", "linkdir/logo.png", "missing.png", ""} {
 		if bad == "" {
@@ -632,44 +640,6 @@ func benchPDF(b *testing.B, doc *Doc) {
 		n = len(out)
 	}
 	b.ReportMetric(float64(n), "bytes")
-}
-
-// TestPDFWritePNG writes the test memo and its pages as pictures for a
-// person to look at: go test ./render -run PNG -pdfdir /tmp/pdf.
-func TestPDFWritePNG(t *testing.T) {
-	dir := os.Getenv("WORTH_PDF_DIR")
-	if dir == "" {
-		t.Skip("set WORTH_PDF_DIR to write the test memo's PDF there")
-	}
-	for _, code := range []string{"USD", "EUR"} {
-		b := buildPDF(t, testDoc(code), PDFOptions{})
-		if err := os.WriteFile(filepath.Join(dir, "test-"+code+".pdf"), b, 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-}
-
-func TestPDFWriteSamples(t *testing.T) {
-	dir := os.Getenv("WORTH_PDF_DIR")
-	if dir == "" {
-		t.Skip("set WORTH_PDF_DIR")
-	}
-	f := testFormat("USD")
-	a := screenAlt{id: "x", name: "Long", life: 120, first: 900000, annual: 8000, every: 5, overhaulCost: 30000, salv: 10000}
-	tb := Table{Caption: "Wide", Align: []byte{'l'}}
-	for c := 0; c < 14; c++ {
-		tb.Header = append(tb.Header, fmt.Sprintf("Alternative number %d with a long name", c))
-		tb.Align = append(tb.Align, 'r')
-	}
-	for r := 0; r < 5; r++ {
-		var row []string
-		for c := 0; c < 14; c++ {
-			row = append(row, fmt.Sprintf("−$%d,%03d,%03d", r+1, c*37, c*91%1000))
-		}
-		tb.Rows = append(tb.Rows, row)
-	}
-	doc := &Doc{Title: "Samples", Currency: "USD", Body: []Node{Chart{Kind: "cashflow", Title: "120 years", Arrows: a.arrows(f)}, tb}}
-	os.WriteFile(filepath.Join(dir, "samples.pdf"), buildPDF(t, doc, PDFOptions{}), 0o644)
 }
 
 // pdfOf builds a memo file into a PDF.
@@ -782,5 +752,36 @@ func TestPDFWriteExamples(t *testing.T) {
 		if err := os.WriteFile(filepath.Join(dir, strings.TrimSuffix(filepath.Base(p), ".md")+".pdf"), b, 0o644); err != nil {
 			t.Fatal(err)
 		}
+	}
+	for _, code := range []string{"USD", "EUR"} {
+		b := buildPDF(t, testDoc(code), PDFOptions{})
+		if err := os.WriteFile(filepath.Join(dir, "hand-built-"+code+".pdf"), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+// A hostile memo: its script-like text prints as text, and no link with a
+// script or data scheme becomes clickable.
+func TestPDFHostile(t *testing.T) {
+	p := "testdata/hostile.md"
+	if _, err := os.Stat(p); err != nil {
+		t.Skip("no hostile test memo")
+	}
+	b := pdfOf(t, p, DocOptions{})
+	for _, m := range regexp.MustCompile(`/URI \(([^)]*)\)`).FindAllSubmatch(b, -1) {
+		u := strings.ToLower(string(m[1]))
+		if !strings.HasPrefix(u, "http://") && !strings.HasPrefix(u, "https://") && !strings.HasPrefix(u, "mailto:") {
+			t.Errorf("a clickable link to %q", m[1])
+		}
+	}
+	for _, want := range []string{"/JavaScript", "/JS ", "/Launch", "/SubmitForm"} {
+		if bytes.Contains(b, []byte(want)) {
+			t.Errorf("the PDF holds %s", want)
+		}
+	}
+	all := strings.Join(pdfText(t, b), "\n")
+	if !strings.Contains(all, "Evil memo") {
+		t.Errorf("the title is missing")
 	}
 }
