@@ -421,6 +421,9 @@ func finiteWork(a *Alternative, i float64, n int, pw float64) []*Equation {
 			eqs = append(eqs, &Equation{LHS: "AW₁", Label: "the cycle as an equal annual amount", Terms: []Term{symbolTerm("PW₁", pw1, factor("A/P", i, 0, float64(L)))}, Value: aw1})
 			final := []Term{symbolTerm("AW₁", aw1, factor("P/A", i, 0, float64(full*L)))}
 			label := fmt.Sprintf("%d cycles of %d years", full, L)
+			if full == 1 {
+				label = fmt.Sprintf("one cycle of %d years", L)
+			}
 			if rem > 0 {
 				c2 := a.cycleTerms(i, rem)
 				pw2 := sumTerms(c2)

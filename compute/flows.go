@@ -238,7 +238,8 @@ func (a *Alternative) cycleTerms(i float64, cutAge int) []Term {
 				add(coef, pfShift([]Factor{factor("P/A,g", i, it.Escalation, m)}, it.From-1))
 			default:
 				add(coef, pfShift([]Factor{factor("P/A", i, 0, m)}, it.From-1))
-				if it.HasGradient && it.Gradient != 0 {
+				// (P/G, i, 1) = 0: a one-year series has no gradient term.
+				if it.HasGradient && it.Gradient != 0 && m >= 2 {
 					add(cat.sign()*it.Gradient, pfShift([]Factor{factor("P/G", i, 0, m)}, it.From-1))
 				}
 			}
