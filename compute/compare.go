@@ -305,7 +305,14 @@ func evalFinite(r *Result, a *Alternative, i float64, n int) {
 		r.ByCategory[c] = s
 	}
 	r.Work = finiteWork(a, i, n, r.PW)
-	rateOfReturn(r, net, nil)
+	// Over whole repeated cycles the horizon's present worth is one cycle's
+	// times sum_j (1+r)^(-jL) > 0, so it has the cycle's rates of return;
+	// searching the one cycle's flows is the same and far shorter.
+	var cycle []float64
+	if a.Life > 0 && n > a.Life && n%a.Life == 0 {
+		cycle = netFlows(a.Flows(a.Life, false))
+	}
+	rateOfReturn(r, net, cycle, nil)
 	if a.HasBenefits {
 		r.Payback, r.DiscPayback = payback(r.Flows, i)
 	}
@@ -366,7 +373,7 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 			return NPV(x, cycle)
 		}
 	}
-	rateOfReturn(r, netFlows(signs), pwAt)
+	rateOfReturn(r, netFlows(signs), nil, pwAt)
 	if a.HasBenefits {
 		// Payback only means something where benefits pay back a cost.
 		long := a.Flows(MaxRepeatYears, false)
@@ -444,15 +451,21 @@ func finiteWork(a *Alternative, i float64, n int, pw float64) []*Equation {
 // rateOfReturn finds every rate of return. Over a finite horizon it is the
 // rate that zeroes the net flows' present worth; on a perpetual horizon
 // f gives the capitalized worth at a rate.
-func rateOfReturn(r *Result, net []float64, f func(float64) float64) {
+//
+// cycle, when not nil, holds flows with the same rates as net (one of the
+// repeated cycles that make up the horizon), searched instead of net.
+func rateOfReturn(r *Result, net, cycle []float64, f func(float64) float64) {
 	r.SignChanges = SignChanges(net)
 	if r.SignChanges == 0 || !r.Alt.HasBenefits {
 		// A cost-only alternative (salvage aside) earns no rate of return.
 		return
 	}
-	if f == nil {
+	switch {
+	case f == nil && cycle != nil:
+		r.IRRRoots = FlowRates(cycle)
+	case f == nil:
 		r.IRRRoots = FlowRates(net)
-	} else {
+	default:
 		r.IRRRoots = RatesOfReturn(f, 0, 10)
 	}
 	if len(r.IRRRoots) == 1 {

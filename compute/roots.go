@@ -42,10 +42,16 @@ const (
 // as identically zero and no rate is returned. It needs -1 < lo < hi, and
 // returns nil otherwise.
 func RatesOfReturn(f func(r float64) float64, lo, hi float64) []float64 {
-	if !(lo > -1) || !(hi > lo) || math.IsInf(hi, 0) {
+	return RatesOfReturnGrid(f, lo, hi, rateGridIntervals)
+}
+
+// RatesOfReturnGrid is RatesOfReturn with a grid of n intervals, for
+// searches over a narrow span (a chart's crossover rates) where the full
+// grid is needlessly fine.
+func RatesOfReturnGrid(f func(r float64) float64, lo, hi float64, n int) []float64 {
+	if !(lo > -1) || !(hi > lo) || math.IsInf(hi, 0) || n < 1 {
 		return nil
 	}
-	const n = rateGridIntervals
 	a0, a1 := math.Log1p(lo), math.Log1p(hi)
 	grid := func(k int) float64 {
 		switch k {
@@ -54,7 +60,7 @@ func RatesOfReturn(f func(r float64) float64, lo, hi float64) []float64 {
 		case n:
 			return hi
 		}
-		return math.Expm1(a0 + float64(k)*(a1-a0)/n)
+		return math.Expm1(a0 + float64(k)*(a1-a0)/float64(n))
 	}
 
 	var roots []float64
