@@ -1145,14 +1145,14 @@ type pdfBoxRow struct {
 }
 
 type pdfBoxStyle struct {
-	fill       pdfRgb
-	bar        pdfRgb
-	barW       float64
-	border     bool
-	padX       float64
-	padTop     float64
-	padBottom  float64
-	continuedH float64 // room for a "continued" row on later pages
+	fill      pdfRgb
+	bar       pdfRgb
+	barW      float64
+	border    bool
+	padX      float64
+	padTop    float64
+	padBottom float64
+	continued string // what a part on a later page says it continues
 }
 
 // box draws rows on a filled background, splitting across pages between
@@ -1160,7 +1160,11 @@ type pdfBoxStyle struct {
 func (w *pdfWriter) box(st pdfBoxStyle, rows []pdfBoxRow) {
 	i := 0
 	for i < len(rows) {
-		avail := w.bot - w.y - st.padTop - st.padBottom
+		cont := 0.0
+		if i > 0 && st.continued != "" {
+			cont = 13 // a line that says what continues here
+		}
+		avail := w.bot - w.y - st.padTop - st.padBottom - cont
 		var sum float64
 		j := i
 		for j < len(rows) {
@@ -1187,7 +1191,7 @@ func (w *pdfWriter) box(st pdfBoxStyle, rows []pdfBoxRow) {
 			w.newPage()
 			continue
 		}
-		h := st.padTop + sum + st.padBottom
+		h := st.padTop + cont + sum + st.padBottom
 		x0, x1 := w.left, w.righ
 		w.setFill(st.fill)
 		w.pdf.Rect(x0, w.y, x1-x0, h, "F")
@@ -1201,6 +1205,10 @@ func (w *pdfWriter) box(st pdfBoxStyle, rows []pdfBoxRow) {
 		}
 		w.decorate(w.y, w.y+h)
 		y := w.y + st.padTop
+		if cont > 0 {
+			w.text(x0+st.padX+st.barW, y+9, pdfFit(st.continued+" (continued)", fItalic, 8.5, x1-x0-2*st.padX-st.barW), fItalic, 8.5, pdfColMuted)
+			y += cont
+		}
 		for _, r := range rows[i:j] {
 			if r.draw != nil {
 				r.draw(x0+st.padX+st.barW, y)
@@ -1353,7 +1361,7 @@ func (w *pdfWriter) equations(e *Equations) {
 		}
 	}
 	w.flushMarkerAt()
-	w.box(pdfBoxStyle{fill: pdfColEqFill, bar: pdfColAccent, barW: 2.5, padX: pad, padTop: 7, padBottom: 7}, rows)
+	w.box(pdfBoxStyle{fill: pdfColEqFill, bar: pdfColAccent, barW: 2.5, padX: pad, padTop: 7, padBottom: 7, continued: e.Title}, rows)
 	w.after(10)
 }
 

@@ -785,3 +785,24 @@ func TestPDFHostile(t *testing.T) {
 		t.Errorf("the title is missing")
 	}
 }
+
+// Documents drawn at the same time (the preview server may) come out the
+// same as one drawn alone.
+func TestPDFConcurrent(t *testing.T) {
+	want := buildPDF(t, testDoc("EUR"), PDFOptions{})
+	errs := make(chan error, 4)
+	for k := 0; k < 4; k++ {
+		go func() {
+			b, err := PDF(testDoc("EUR"), PDFOptions{})
+			if err == nil && !bytes.Equal(b, want) {
+				err = fmt.Errorf("a concurrent build differs")
+			}
+			errs <- err
+		}()
+	}
+	for k := 0; k < 4; k++ {
+		if err := <-errs; err != nil {
+			t.Error(err)
+		}
+	}
+}
