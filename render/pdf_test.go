@@ -233,7 +233,7 @@ func testDoc(code string) *Doc {
 			Marks:  []Mark{{Y: 0, HasY: true, Label: "break-even"}, {X: 6.3, Y: 0, HasX: true, HasY: true, Label: "payback 6.3 years"}}},
 		CodeBlock{Text: "compare screens\n  alternatives: steel, wedge-wire\n  horizon: perpetual\n  rate: 7%\n  decide by: present worth  # a rather long comment that runs past the right edge of the page and must wrap somewhere sensible"},
 		Rule{},
-		Paragraph{Text: []Inline{{Text: "Currency signs print as themselves: € £ ¥ and the minus sign −12,500; "}, {Text: "struck text", Strike: true}, {Text: "; a line"}, {Break: true}, {Text: "break; and a URL-like word "}, {Text: "https://example.org/a/very/long/path/that/does/not/pdfFit/on/one/line/of/the/memo/at/all/really/none", Link: "https://example.org/x"}}},
+		Paragraph{Text: []Inline{{Text: "Currency signs print as themselves: € £ ¥ and the minus sign −12,500; "}, {Text: "struck text", Strike: true}, {Text: "; a line"}, {Break: true}, {Text: "break; and a URL-like word "}, {Text: "https://example.org/a/very/long/path/that/does/not/fit/on/one/line/of/the/memo/at/all/really/none", Link: "https://example.org/x"}}},
 	)
 	var app []Node
 	app = append(app, Heading{Level: 1, ID: "appendix", Text: []Inline{{Text: "Appendix: calculations"}}})

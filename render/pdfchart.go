@@ -52,7 +52,18 @@ func (w *pdfWriter) chartNotes(c *Chart) []string {
 const pdfChartNoteLead = 10.5
 
 // chartHeight is the height a chart takes with its title and notes.
-func (w *pdfWriter) chartHeight(c *Chart) float64 {
+func (w *pdfWriter) chartHeight(c *Chart) float64 { return w.chartHeightShrunk(c, 0) }
+
+// chartShrink is how much a chart's plot may give up to stay on a page
+// rather than leave most of one empty.
+func chartShrink(c *Chart) float64 {
+	if c.Kind == "cashflow" {
+		return 50
+	}
+	return 40
+}
+
+func (w *pdfWriter) chartHeightShrunk(c *Chart, shrink float64) float64 {
 	h := 0.0
 	keyW := 0.0
 	if c.Kind == "cashflow" {
@@ -65,9 +76,9 @@ func (w *pdfWriter) chartHeight(c *Chart) float64 {
 	}
 	switch c.Kind {
 	case "cashflow":
-		h += 200
+		h += 200 - shrink
 	default:
-		h += 210 + w.legendHeight(c)
+		h += 210 - shrink + w.legendHeight(c)
 	}
 	if n := len(w.chartNotes(c)); n > 0 {
 		h += 4 + float64(n)*pdfChartNoteLead
@@ -81,6 +92,9 @@ func (w *pdfWriter) chartHeight(c *Chart) float64 {
 func (w *pdfWriter) chart(c *Chart) {
 	w.gap(12)
 	h := w.chartHeight(c)
+	if room := w.room() - 4; h > room && w.y > w.top+0.5 && h-chartShrink(c) <= room {
+		h = w.chartHeightShrunk(c, h-room)
+	}
 	w.ensure(h + 4)
 	w.flushMarkerAt()
 	y := w.y
