@@ -358,22 +358,14 @@ func evalPerpetual(r *Result, a *Alternative, i float64) {
 	r.Flows = a.Flows(show, false)
 	discount(r.Flows, i)
 	signs := a.Flows(2*show, false)
-	// Fix (speed, see bench_test.go): with a life, the capitalized worth
-	// PW₁(x) (A/P, x, L) / x has the roots of one cycle's present worth
-	// PW₁(x), since (A/P, x, L) / x > 0 for x > 0; scanning the NPV of the
-	// cycle's flows (r.Flows) finds the same rates without rebuilding the
-	// worked terms at every grid point. NaN at x <= 0, as perpetualPW.
-	pwAt := a.perpetualPW
+	// With a life, the capitalized worth PW₁(x) (A/P, x, L) / x has the
+	// roots of one cycle's present worth PW₁(x), since (A/P, x, L) / x > 0
+	// for x > 0: the cycle's flows (r.Flows) are searched above zero.
+	var cycleFlows []float64
 	if a.Life > 0 {
-		cycle := netFlows(r.Flows)
-		pwAt = func(x float64) float64 {
-			if x <= 0 {
-				return math.NaN()
-			}
-			return NPV(x, cycle)
-		}
+		cycleFlows = netFlows(r.Flows)
 	}
-	rateOfReturn(r, netFlows(signs), nil, pwAt)
+	rateOfReturn(r, netFlows(signs), cycleFlows, a.perpetualPW)
 	if a.HasBenefits {
 		// Payback only means something where benefits pay back a cost.
 		long := a.Flows(MaxRepeatYears, false)
@@ -461,6 +453,9 @@ func rateOfReturn(r *Result, net, cycle []float64, f func(float64) float64) {
 		return
 	}
 	switch {
+	case f != nil && cycle != nil:
+		// A perpetual horizon: the cycle's rates above zero.
+		r.IRRRoots = FlowRatesIn(cycle, 0, FlowRateHigh)
 	case f == nil && cycle != nil:
 		r.IRRRoots = FlowRates(cycle)
 	case f == nil:

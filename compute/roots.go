@@ -118,17 +118,99 @@ func mergeRoots(roots []float64) []float64 {
 //
 // found by RatesOfReturn. Flows that are all zero have none.
 func FlowRates(flows []float64) []float64 {
+	return FlowRatesIn(flows, FlowRateLow, FlowRateHigh)
+}
+
+// FlowRatesIn is FlowRates over the rates in (lo, hi].
+func FlowRatesIn(flows []float64, lo, hi float64) []float64 {
 	f := func(r float64) float64 { return NPV(r, flows) }
 	// Fix (speed, see bench_test.go): flows with one change of sign have
 	// exactly one rate (SignChanges), so a binary search over the scanning
 	// grid finds the interval the full scan would, in a dozen evaluations
 	// instead of rateGridIntervals.
 	if SignChanges(flows) == 1 {
-		if roots, ok := oneRate(f, FlowRateLow, FlowRateHigh); ok {
+		if roots, ok := oneRate(f, lo, hi); ok {
 			return roots
 		}
 	}
-	return RatesOfReturn(f, FlowRateLow, FlowRateHigh)
+	return flowRatesAdaptive(flows, lo, hi)
+}
+
+// flowRatesAdaptive finds every rate of flows in (lo, hi] by subdividing
+// instead of scanning the whole fine grid. In u = log(1+r) the present
+// worth is f(u) = sum_t c_t e^(-t u), whose slope on [ua, ub] is bounded by
+//
+//	L = sum_t t |c_t| e^(-t ua)
+//
+// so an interval of width w where max(|f(ua)|, |f(ub)|) > L w holds no
+// root and is skipped. Other intervals are halved down to the width of
+// RatesOfReturn's grid (rateGridIntervals), where a change of sign is
+// refined by Root. It finds what that grid scan finds, and more (two roots
+// within one grid interval, a root where f touches zero, are excluded or
+// resolved further), at a fraction of the evaluations when the present
+// worth keeps away from zero over most of the range.
+func flowRatesAdaptive(flows []float64, lo, hi float64) []float64 {
+	if !(lo > -1) || !(hi > lo) || math.IsInf(hi, 0) {
+		return nil
+	}
+	weighted := make([]float64, len(flows))
+	allZero := true
+	for t, c := range flows {
+		weighted[t] = float64(t) * math.Abs(c)
+		allZero = allZero && c == 0
+	}
+	if allZero {
+		return nil
+	}
+	f := func(u float64) float64 { return NPV(math.Expm1(u), flows) }
+	slope := func(u float64) float64 { return NPV(math.Expm1(u), weighted) }
+	a0, a1 := math.Log1p(lo), math.Log1p(hi)
+	fine := (a1 - a0) / rateGridIntervals
+	finite := func(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+	var roots []float64
+	var scan func(ua, ub, fa, fb float64)
+	scan = func(ua, ub, fa, fb float64) {
+		w := ub - ua
+		if finite(fa) && finite(fb) && fa != 0 && fb != 0 {
+			if (fa < 0) != (fb < 0) && w <= fine {
+				if r, ok := Root(func(r float64) float64 { return NPV(r, flows) }, math.Expm1(ua), math.Expm1(ub)); ok {
+					roots = append(roots, r)
+				}
+				return
+			}
+			if (fa < 0) == (fb < 0) {
+				if L := slope(ua); finite(L) && math.Max(math.Abs(fa), math.Abs(fb)) > L*w {
+					return
+				}
+			}
+		}
+		if w <= fine/16 {
+			return // beyond resolution: a touch of zero too shallow to matter
+		}
+		um := ua + w/2
+		fm := f(um)
+		if fm == 0 {
+			roots = append(roots, math.Expm1(um))
+		}
+		scan(ua, um, fa, fm)
+		scan(um, ub, fm, fb)
+	}
+	const coarse = 64
+	ua, fa := a0, f(a0)
+	for k := 1; k <= coarse; k++ {
+		ub := a0 + float64(k)*(a1-a0)/coarse
+		if k == coarse {
+			ub = a1
+		}
+		fb := f(ub)
+		if fb == 0 {
+			roots = append(roots, math.Expm1(ub))
+		}
+		scan(ua, ub, fa, fb)
+		ua, fa = ub, fb
+	}
+	slices.Sort(roots)
+	return mergeRoots(roots)
 }
 
 // oneRate returns the rate in (lo, hi] of f, which has exactly one root in
