@@ -454,20 +454,29 @@ func (p *parser) blockLines(n *ast.FencedCodeBlock, body []byte) []srcLine {
 
 // stripComment removes a # comment that is not inside a quoted string.
 func stripComment(s string) string {
-	var quote rune
-	for i, c := range s {
-		switch {
-		case quote != 0:
-			if c == quote {
-				quote = 0
-			}
-		case c == '"' || c == '\'':
-			quote = c
-		case c == '#':
-			return s[:i]
-		}
+	if i := unquoted(s, '#'); i >= 0 {
+		return s[:i]
 	}
 	return s
+}
+
+// unquoted returns the byte offset of the first c in s outside quoted
+// strings, or -1.
+func unquoted(s string, c rune) int {
+	var quote rune
+	for i, r := range s {
+		switch {
+		case quote != 0:
+			if r == quote {
+				quote = 0
+			}
+		case r == '"' || r == '\'':
+			quote = r
+		case r == c:
+			return i
+		}
+	}
+	return -1
 }
 
 // at returns the text s found inside line l, with its position. s must be a
@@ -530,22 +539,7 @@ func (p *parser) assume(h BlockHead, lines []srcLine) Block {
 }
 
 // tilde finds a ~ outside quotes.
-func tilde(s string) int {
-	var quote rune
-	for i, c := range s {
-		switch {
-		case quote != 0:
-			if c == quote {
-				quote = 0
-			}
-		case c == '"' || c == '\'':
-			quote = c
-		case c == '~':
-			return i
-		}
-	}
-	return -1
-}
+func tilde(s string) int { return unquoted(s, '~') }
 
 // DistributionArgs gives the number of parameters of each distribution.
 var DistributionArgs = map[string]int{"triangular": 3, "uniform": 2, "normal": 2, "pert": 3, "lognormal": 2}
