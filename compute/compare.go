@@ -68,6 +68,9 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 	}
 	// Rate.
 	switch {
+	case e.overrides != nil && e.overrides.Rate != nil:
+		v := *e.overrides.Rate
+		c.Rate = Rate{Text: pct(v), Stated: v, Effective: v}
 	case src.Rate != nil:
 		r, good := e.rate(src.Rate, "rate", inflation)
 		if !good {

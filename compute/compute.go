@@ -12,8 +12,33 @@ import (
 // Compute evaluates a parsed memo. It returns the report and, when anything
 // is wrong, a parse.ErrorList with every error found.
 func Compute(memo *parse.Memo) (*Report, error) {
+	return compute(memo, nil)
+}
+
+// Overrides replace named assumptions' values, and optionally the interest
+// rate of every comparison, for a recomputation of a memo (a scenario, a
+// sensitivity swing). Values holds final values: the expressions of the
+// overridden assumptions are not evaluated, and every expression that uses
+// them follows.
+type Overrides struct {
+	Values map[string]float64
+	// Rate, when set, is the effective annual rate every comparison uses.
+	Rate *float64
+}
+
+// Recompute evaluates the memo again with overrides: the base results
+// (alternatives, comparisons, placements) only, without expectations,
+// inline values or analysis blocks. It is what a scenario or a sensitivity
+// swing needs; it returns an error when the overrides make the memo
+// invalid (e.g. a rate at which a perpetual sum diverges).
+func Recompute(memo *parse.Memo, ov Overrides) (*Report, error) {
+	return compute(memo, &ov)
+}
+
+func compute(memo *parse.Memo, ov *Overrides) (*Report, error) {
 	var errs parse.ErrorList
 	e := newEnv(memo.File, &errs)
+	e.overrides = ov
 	rep := &Report{Memo: memo, Inline: map[int]Value{}, Places: map[*parse.Place]*Placement{}}
 	fm := memo.Front
 	rep.Title = fm.Title.Value.Src
@@ -84,6 +109,9 @@ func Compute(memo *parse.Memo) (*Report, error) {
 	}
 	if len(errs) > 0 {
 		return rep, errs.Err()
+	}
+	if ov != nil {
+		return rep, nil
 	}
 	// Results are known: expectations and inline values.
 	e.results = &resultFuncs{rep: rep, byID: byID, comps: compByID}

@@ -26,6 +26,8 @@ type env struct {
 	// frontRateFailed is set when the front matter's rate could not be
 	// read (already reported), so comparisons do not report it missing.
 	frontRateFailed bool
+	// overrides, when set, fix assumptions' values and the rate (Recompute).
+	overrides *Overrides
 	// na is the measure that did not apply in the evaluation under way
 	// (see notApplicableIn).
 	na *notApplicable
@@ -235,6 +237,14 @@ func (e *env) assumptions(memo *parse.Memo) []*Assumption {
 			return false
 		}
 		state[it.Name] = 1
+		if e.overrides != nil {
+			if v, ok := e.overrides.Values[it.Name]; ok {
+				e.vars[it.Name] = v
+				out[it.Name] = &Assumption{Name: it.Name, Value: v, Expr: it.Expr.Src, Line: it.Line}
+				state[it.Name] = 2
+				return true
+			}
+		}
 		x, err := expr.Compile(it.Expr.Src, e.opts)
 		ok := true
 		if err != nil {
