@@ -145,10 +145,9 @@ func FlowRatesIn(flows []float64, lo, hi float64) []float64 {
 // so an interval of width w where max(|f(ua)|, |f(ub)|) > L w holds no
 // root and is skipped. Other intervals are halved down to the width of
 // RatesOfReturn's grid (rateGridIntervals), where a change of sign is
-// refined by Root. It finds what that grid scan finds, and more (two roots
-// within one grid interval, a root where f touches zero, are excluded or
-// resolved further), at a fraction of the evaluations when the present
-// worth keeps away from zero over most of the range.
+// refined by Root. It finds what that grid scan finds, at a fraction of
+// the evaluations when the present worth keeps away from zero over most of
+// the range, and never needs many more than the grid.
 func flowRatesAdaptive(flows []float64, lo, hi float64) []float64 {
 	if !(lo > -1) || !(hi > lo) || math.IsInf(hi, 0) {
 		return nil
@@ -184,8 +183,8 @@ func flowRatesAdaptive(flows []float64, lo, hi float64) []float64 {
 				}
 			}
 		}
-		if w <= fine/16 {
-			return // beyond resolution: a touch of zero too shallow to matter
+		if w <= fine {
+			return // the grid's resolution: no change of sign here
 		}
 		um := ua + w/2
 		fm := f(um)
