@@ -28,6 +28,9 @@ func (e *env) alternative(src *parse.Alternative) *Alternative {
 	}
 	for _, l := range src.Lines {
 		it := &Item{Line: l.Line, Label: l.Label, Kind: l.Kind, Sign: l.Sign}
+		if l.Pos.File != src.Pos.File {
+			it.File = l.Pos.File // a row of a CSV file ("cash flows from:")
+		}
 		v, good := e.number(l.Amount, l.Label)
 		if good && v < 0 {
 			e.errs.Add(l.Amount.Pos, "amounts are written as positive numbers; the label (%s) says which way the money goes, got %s", l.Label, trimFloat(v))
@@ -99,6 +102,14 @@ func (e *env) alternative(src *parse.Alternative) *Alternative {
 			if src.Life == nil {
 				e.errs.Add(l.Pos, "salvage comes at the end of a life, and %s has no life; add \"life: N\" or remove the salvage", a.ID)
 				good = false
+			} else if l.At != nil {
+				// A salvage row of a CSV names its year: the end of the life.
+				y, g := e.year(*l.At, "the year", 0)
+				if g && y != a.Life {
+					e.errs.Add(l.At.Pos, "salvage falls at the end of a life, year %d of %s, not at year %d", a.Life, a.ID, y)
+					g = false
+				}
+				good = good && g
 			}
 		}
 		ok = ok && good

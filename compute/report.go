@@ -100,6 +100,9 @@ type Item struct {
 	HasEscalation bool
 	Gradient      float64
 	HasGradient   bool
+	// File is the CSV file the line was read from ("cash flows from:"),
+	// "" for a line of the memo itself; Line is then the CSV's line.
+	File string
 }
 
 // Category sorts flows for the ratios: investment (first costs), other

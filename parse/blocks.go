@@ -23,7 +23,7 @@ var (
 var alternativeForms = []string{
 	"name", "life", "first cost", "cost at year N", "benefit at year N", "annual cost", "annual benefit",
 	"annual cost from year A to year B", "cost every K years", "benefit every K years", "salvage", "residual",
-	"disbenefit at year N", "annual disbenefit", "depreciation",
+	"disbenefit at year N", "annual disbenefit", "depreciation", "cash flows from",
 }
 
 var signOf = map[string]Sign{"cost": Cost, "benefit": Benefit, "disbenefit": Disbenefit}
@@ -87,6 +87,9 @@ func (p *parser) alternative(h BlockHead, lines []srcLine) Block {
 			if once("depreciation", l.pos) {
 				a.Depreciation = p.depreciation(val)
 			}
+			continue
+		case key == "cash flows from":
+			a.Lines = append(a.Lines, p.cashFlowsFrom(a, val)...)
 			continue
 		case key == "first cost":
 			fl.Kind, fl.Sign = FirstCost, Cost

@@ -24,6 +24,9 @@ type Memo struct {
 	// source order. InlineAt maps the code span node to it.
 	Inline   []*Inline
 	InlineAt map[ast.Node]*Inline
+	// Includes lists the files the memo names ("cash flows from:"), in
+	// source order.
+	Includes []*Include
 }
 
 // Text is a piece of source text (usually an expression) and where it starts.
@@ -149,7 +152,7 @@ type FlowLine struct {
 	Kind   FlowKind
 	Sign   Sign
 	Amount Text
-	At     *Text // Once: the year
+	At     *Text // Once: the year; Salvage read from a CSV: the year it falls
 	Every  *Text // Periodic: K
 	From   *Text // Annual, Periodic: first year (optional)
 	To     *Text // Annual, Periodic: last year (optional)

@@ -41,9 +41,16 @@ func Markdown() goldmark.Markdown {
 // Parse reads a memo. file is used in positions. It returns the memo and,
 // when anything is wrong, an ErrorList with every error found.
 func Parse(file string, src []byte) (*Memo, error) {
+	return ParseWith(file, src, Options{})
+}
+
+// ParseWith is Parse with options: a Resolver for the files the memo names
+// (see csv.go).
+func ParseWith(file string, src []byte, opt Options) (*Memo, error) {
 	p := &parser{
 		memo: &Memo{File: file, Source: src, Nodes: map[ast.Node]Block{}, InlineAt: map[ast.Node]*Inline{}},
 		idx:  newLineIndex(file, src),
+		opt:  opt,
 	}
 	body := p.frontMatter(src)
 	doc := Markdown().Parser().Parse(text.NewReader(body))
@@ -60,6 +67,7 @@ type parser struct {
 	memo *Memo
 	idx  *lineIndex
 	errs ErrorList
+	opt  Options
 }
 
 func (p *parser) errorf(pos Pos, format string, args ...any) {

@@ -488,7 +488,7 @@ func (b *builder) alternative(x *parse.Alternative) []Node {
 		Source:  fmt.Sprintf("alternative %s, %s", a.ID, lineRange(&x.BlockHead)),
 	}
 	for _, it := range a.Items {
-		t.Rows = append(t.Rows, []string{it.Label, KindWord(it), b.f.Money(it.Amount), b.itemWhen(a, it), strconv.Itoa(it.Line)})
+		t.Rows = append(t.Rows, []string{it.Label, KindWord(it), b.f.Money(it.Amount), b.itemWhen(a, it), ItemLine(it)})
 	}
 	if a.Residual != nil {
 		t.Rows = append(t.Rows, []string{"residual", "value at a study period's end", b.f.Money(*a.Residual), "end of a study period that cuts a life", strconv.Itoa(a.ResidualLine)})

@@ -202,7 +202,7 @@ func mdBlock(rep *compute.Report, f Format, blk parse.Block) string {
 		fmt.Fprintf(&b, "**Alternative %s** (`%s`), life: %s\n\n", escapeMD(a.Name), a.ID, LifeText(a))
 		var rows [][]string
 		for _, it := range a.Items {
-			rows = append(rows, []string{it.Label, KindWord(it), f.ItemAmount(it), ItemWhen(a, it), fmt.Sprint(it.Line)})
+			rows = append(rows, []string{it.Label, KindWord(it), f.ItemAmount(it), ItemWhen(a, it), ItemLine(it)})
 		}
 		if a.Residual != nil {
 			rows = append(rows, []string{"residual", "value at a study period's end", f.Money(*a.Residual), "end of a study period that cuts a life", fmt.Sprint(a.ResidualLine)})

@@ -22,10 +22,12 @@ const usage = `worth evaluates decision memos: Markdown with fenced cash-flow bl
 Usage:
   worth build [-o FILE] [--format FORMAT] [options] MEMO.md
   worth check MEMO.md...
+  worth new [--kind NAME] FILE.md
 
 Commands:
   build   compute the memo and write its report
   check   compute the memo(s) and run every expect block; write nothing
+  new     write a starter memo that builds as is
 
 Run "worth COMMAND --help" for a command's options.
 `
@@ -45,6 +47,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return build(args[1:], stdout, stderr)
 	case "check":
 		return check(args[1:], stdout, stderr)
+	case "new":
+		return newMemo(args[1:], stdout, stderr)
 	case "-h", "--help", "help":
 		fmt.Fprint(stdout, usage)
 		return 0
@@ -77,27 +81,7 @@ func parseInterspersed(fs *flag.FlagSet, args []string) ([]string, error) {
 
 // load reads, parses and computes one memo.
 func load(path string) (*compute.Report, error) {
-	src, err := os.ReadFile(path)
-	if err != nil {
-		return nil, err
-	}
-	// Compute even when parsing found errors, so that every error of the
-	// memo is reported at once.
-	memo, perr := parse.Parse(path, src)
-	rep, cerr := compute.Compute(memo)
-	var all parse.ErrorList
-	for _, err := range []error{perr, cerr} {
-		var list parse.ErrorList
-		if errors.As(err, &list) {
-			all = append(all, list...)
-		} else if err != nil {
-			return nil, err
-		}
-	}
-	if err := all.Err(); err != nil {
-		return nil, err
-	}
-	return rep, nil
+	return loadWith(path, loadOptions{})
 }
 
 // buildOptions are the build flags that shape the output.
@@ -108,7 +92,7 @@ type buildOptions struct {
 }
 
 // formats are the output formats by name.
-var formats = map[string]bool{"md": true, "json": true, "html": true, "pdf": true}
+var formats = map[string]bool{"md": true, "json": true, "html": true, "pdf": true, "csv": true}
 
 // renderAll writes the report in each format asked for. The HTML and PDF
 // writers share one document model, built once.
@@ -122,6 +106,8 @@ func renderAll(rep *compute.Report, fmts []string, opt buildOptions) ([][]byte, 
 			out[i] = render.Markdown(rep)
 		case "json":
 			out[i], err = render.JSON(rep)
+		case "csv":
+			out[i] = render.CSV(rep)
 		case "html", "pdf":
 			if doc == nil {
 				doc = render.BuildDoc(rep, render.DocOptions{AllowHTML: opt.allowHTML, AppendixOnly: opt.appendixOnly})
@@ -142,12 +128,14 @@ func renderAll(rep *compute.Report, fmts []string, opt buildOptions) ([][]byte, 
 func build(args []string, stdout, stderr io.Writer) int {
 	fs := flag.NewFlagSet("build", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	out := fs.String("o", "", "write one file `FILE` (format from its extension: .html, .pdf, .md, .json); - writes to standard output")
-	format := fs.String("format", "", "output `FORMAT`: html, pdf, md or json (default: from the -o extension)")
+	out := fs.String("o", "", "write one file `FILE` (format from its extension: .html, .pdf, .md, .json, .csv); - writes to standard output")
+	format := fs.String("format", "", "output `FORMAT`: html, pdf, md, json or csv (every alternative's year-by-year schedule) (default: from the -o extension)")
 	var opt buildOptions
 	fs.StringVar(&opt.templateDir, "template", "", "HTML templates folder `DIR` of the organization's own (files named as the built-in ones)")
 	fs.BoolVar(&opt.allowHTML, "allow-html", false, "let raw HTML in the memo's prose through to the HTML report (script links stay blocked)")
 	fs.BoolVar(&opt.appendixOnly, "appendix-only", false, "write only the calculation appendix (HTML or PDF), to attach to a proposal")
+	var lo loadOptions
+	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let the memo read files (cash flows from: FILE.csv) outside its own folder")
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] [options] MEMO.md\n\n"+
 			"Computes the memo and writes its report. Without -o, writes MEMO.html and\nMEMO.pdf beside the memo (with --format, MEMO.FORMAT; Markdown as MEMO.report.md).\nA memo with an error writes nothing and leaves earlier output untouched.\n\nOptions:\n")
@@ -180,13 +168,13 @@ func build(args []string, stdout, stderr io.Writer) int {
 			}
 		}
 		if !formats[fm] {
-			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md or json (use --format or a file name ending in one of them)\n", fm)
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md, json or csv (use --format or a file name ending in one of them)\n", fm)
 			return 2
 		}
 		targets = append(targets, target{*out, fm})
 	case *format != "":
 		if !formats[*format] {
-			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md or json\n", *format)
+			fmt.Fprintf(stderr, "worth build: unknown output format %q; expected html, pdf, md, json or csv\n", *format)
 			return 2
 		}
 		targets = append(targets, target{besideMemo(memoPath, *format), *format})
@@ -207,10 +195,16 @@ func build(args []string, stdout, stderr io.Writer) int {
 			return 2
 		}
 	}
-	rep, err := load(memoPath)
+	rep, err := loadWith(memoPath, lo)
 	if err != nil {
 		printErr(stderr, err)
 		return 2
+	}
+	for _, t := range targets {
+		if readsFile(rep.Memo, t.path) {
+			fmt.Fprintf(stderr, "worth build: %s is a file the memo reads; write the output elsewhere with -o FILE\n", t.path)
+			return 2
+		}
 	}
 	// Render everything first; write only when all succeeded.
 	fmts := make([]string, len(targets))
@@ -298,6 +292,8 @@ func check(args []string, stdout, stderr io.Writer) int {
 	fs := flag.NewFlagSet("check", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	quiet := fs.Bool("q", false, "print nothing when every expectation holds")
+	var lo loadOptions
+	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let a memo read files (cash flows from: FILE.csv) outside its own folder")
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth check [-q] MEMO.md...\n\n"+
 			"Parses and computes each memo and runs every expect block, writing no files.\n"+
@@ -318,7 +314,7 @@ func check(args []string, stdout, stderr io.Writer) int {
 	}
 	code := 0
 	for _, path := range pos {
-		rep, err := load(path)
+		rep, err := loadWith(path, lo)
 		if err != nil {
 			printErr(stderr, err)
 			code = 2
