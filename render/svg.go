@@ -1,6 +1,7 @@
 package render
 
 import (
+	"html/template"
 	"math"
 	"strconv"
 	"strings"
@@ -9,8 +10,10 @@ import (
 
 // The SVG charts of the HTML writer. A Chart of the document model is laid
 // out here into plain shapes (lines, paths, circles, texts) with their
-// coordinates already formatted; the template in templates/chart.html
-// writes them out, so html/template escapes every label.
+// coordinates already formatted; chartHTML writes them out, escaping every
+// label as html/template does, for the "chart" template of
+// templates/chart.html (which an organization may redefine with template
+// actions over the same svgChart).
 
 // svgChart is one laid-out chart.
 type svgChart struct {
@@ -59,12 +62,42 @@ type svgLegend struct{ Name, Class string }
 
 type svgKey struct{ Letter, Text string }
 
-// num writes a coordinate with at most one decimal.
-func num(x float64) string {
+// coord writes a coordinate with at most one decimal.
+func coord(x float64) string {
+	var a [24]byte
+	return string(appendCoord(a[:0], x))
+}
+
+// appendCoord appends coord(x): strconv.FormatFloat(math.Round(x*10)/10, 'f',
+// -1, 64), "0" for NaN and infinities. Below 10¹⁴ the shortest decimal of
+// a whole number of tenths is that number of tenths, so it is written from
+// the integer (a negative zero as "-0", as FormatFloat writes it).
+func appendCoord(dst []byte, x float64) []byte {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return "0"
+		return append(dst, '0')
 	}
-	return strconv.FormatFloat(math.Round(x*10)/10, 'f', -1, 64)
+	t := math.Round(x * 10)
+	if math.Abs(t) >= 1e15 {
+		return strconv.AppendFloat(dst, t/10, 'f', -1, 64)
+	}
+	n := int64(t)
+	if n < 0 || n == 0 && math.Signbit(t) {
+		dst = append(dst, '-')
+		n = -n
+	}
+	dst = strconv.AppendInt(dst, n/10, 10)
+	if d := n % 10; d != 0 {
+		dst = append(dst, '.', byte('0'+d))
+	}
+	return dst
+}
+
+// appendPoint appends a path command and its point: "Mx y".
+func appendPoint(dst []byte, cmd byte, x, y float64) []byte {
+	dst = append(dst, cmd)
+	dst = appendCoord(dst, x)
+	dst = append(dst, ' ')
+	return appendCoord(dst, y)
 }
 
 // textWidth estimates the width of a label set at size px.
@@ -145,29 +178,35 @@ const (
 // axes draws the grid, the y ticks and labels, the x ticks and labels and
 // the axis titles.
 func axes(c *Chart, f frame, h float64, yearTicksAtBottom bool) svgGroup {
-	g := svgGroup{Class: "axes"}
+	g := svgGroup{Class: "axes",
+		Lines: make([]svgLine, 0, len(c.YTicks)+2*len(c.XTicks)+2),
+		Texts: make([]svgText, 0, len(c.YTicks)+len(c.XTicks)+2)}
+	left, right, top, bottom := coord(f.left), coord(f.right), coord(f.top), coord(f.bottom)
+	tickX := coord(f.left - 6)
 	for _, t := range c.YTicks {
 		y := f.y(t.At)
-		g.Lines = append(g.Lines, svgLine{num(f.left), num(y), num(f.right), num(y), "grid"})
-		g.Texts = append(g.Texts, svgText{X: num(f.left - 6), Y: num(y + 4), Anchor: "end", Class: "tick", Text: t.Label})
+		ys := coord(y)
+		g.Lines = append(g.Lines, svgLine{left, ys, right, ys, "grid"})
+		g.Texts = append(g.Texts, svgText{X: tickX, Y: coord(y + 4), Anchor: "end", Class: "tick", Text: t.Label})
 	}
+	markEnd, labelY := coord(f.bottom+4), coord(f.bottom+16)
 	for _, t := range c.XTicks {
-		x := f.x(t.At)
+		xs := coord(f.x(t.At))
 		if !yearTicksAtBottom {
-			g.Lines = append(g.Lines, svgLine{num(x), num(f.top), num(x), num(f.bottom), "grid"})
+			g.Lines = append(g.Lines, svgLine{xs, top, xs, bottom, "grid"})
 		}
-		g.Lines = append(g.Lines, svgLine{num(x), num(f.bottom), num(x), num(f.bottom + 4), "tickmark"})
-		g.Texts = append(g.Texts, svgText{X: num(x), Y: num(f.bottom + 16), Anchor: "middle", Class: "tick", Text: t.Label})
+		g.Lines = append(g.Lines, svgLine{xs, bottom, xs, markEnd, "tickmark"})
+		g.Texts = append(g.Texts, svgText{X: xs, Y: labelY, Anchor: "middle", Class: "tick", Text: t.Label})
 	}
 	g.Lines = append(g.Lines,
-		svgLine{num(f.left), num(f.top), num(f.left), num(f.bottom), "axis"},
-		svgLine{num(f.left), num(f.bottom), num(f.right), num(f.bottom), "axis"})
+		svgLine{left, top, left, bottom, "axis"},
+		svgLine{left, bottom, right, bottom, "axis"})
 	if c.XLabel != "" {
-		g.Texts = append(g.Texts, svgText{X: num((f.left + f.right) / 2), Y: num(h - 6), Anchor: "middle", Class: "axis-title", Text: c.XLabel})
+		g.Texts = append(g.Texts, svgText{X: coord((f.left + f.right) / 2), Y: coord(h - 6), Anchor: "middle", Class: "axis-title", Text: c.XLabel})
 	}
 	if c.YLabel != "" {
 		cy := (f.top + f.bottom) / 2
-		g.Texts = append(g.Texts, svgText{X: "14", Y: num(cy), Anchor: "middle", Class: "axis-title", Text: c.YLabel, Rotate: "rotate(-90 14 " + num(cy) + ")"})
+		g.Texts = append(g.Texts, svgText{X: "14", Y: coord(cy), Anchor: "middle", Class: "axis-title", Text: c.YLabel, Rotate: "rotate(-90 14 " + coord(cy) + ")"})
 	}
 	return g
 }
@@ -216,7 +255,7 @@ func layoutCashflow(c *Chart, id string) svgChart {
 	spacing := (f.right - f.left) / math.Max(1, f.xmax-f.xmin)
 	stroke := math.Min(3, math.Max(0.6, spacing*0.35))
 	head := math.Min(5, math.Max(1.2, spacing*0.42))
-	var up, down strings.Builder
+	var up, down []byte
 	for _, a := range c.Arrows {
 		if a.Amount == 0 {
 			continue
@@ -231,17 +270,21 @@ func layoutCashflow(c *Chart, id string) svgChart {
 		// The head shrinks with a short arrow, so a small amount stays small.
 		hh := math.Min(head*1.6, math.Abs(yt-y0))
 		hw := head * hh / (head * 1.6)
-		b.WriteString("M" + num(x) + " " + num(y0) + "V" + num(yt-dir*hh*0.5))
-		b.WriteString("M" + num(x-hw) + " " + num(yt-dir*hh) + "L" + num(x) + " " + num(yt) + "L" + num(x+hw) + " " + num(yt-dir*hh) + "Z")
+		*b = appendPoint(*b, 'M', x, y0)
+		*b = appendCoord(append(*b, 'V'), yt-dir*hh*0.5)
+		*b = appendPoint(*b, 'M', x-hw, yt-dir*hh)
+		*b = appendPoint(*b, 'L', x, yt)
+		*b = appendPoint(*b, 'L', x+hw, yt-dir*hh)
+		*b = append(*b, 'Z')
 	}
 	arrows := svgGroup{Class: "arrows"}
-	if up.Len() > 0 {
-		arrows.Paths = append(arrows.Paths, svgPath{up.String(), "inflow", num(stroke)})
+	if len(up) > 0 {
+		arrows.Paths = append(arrows.Paths, svgPath{string(up), "inflow", coord(stroke)})
 	}
-	if down.Len() > 0 {
-		arrows.Paths = append(arrows.Paths, svgPath{down.String(), "outflow", num(stroke)})
+	if len(down) > 0 {
+		arrows.Paths = append(arrows.Paths, svgPath{string(down), "outflow", coord(stroke)})
 	}
-	arrows.Lines = append(arrows.Lines, svgLine{num(f.left), num(y0), num(f.right), num(y0), "time-axis"})
+	arrows.Lines = append(arrows.Lines, svgLine{coord(f.left), coord(y0), coord(f.right), coord(y0), "time-axis"})
 	out.Groups = append(out.Groups, arrows)
 	// Letters for the labelled amounts: one letter per distinct label.
 	letters := map[string]int{}
@@ -278,7 +321,7 @@ func layoutCashflow(c *Chart, id string) svgChart {
 			}
 		}
 		if pos, ok := p.place(text, labelSize, "middle", cands); ok {
-			marks.Texts = append(marks.Texts, svgText{X: num(pos[0]), Y: num(pos[1]), Anchor: "middle", Class: "keyletter", Text: text})
+			marks.Texts = append(marks.Texts, svgText{X: coord(pos[0]), Y: coord(pos[1]), Anchor: "middle", Class: "keyletter", Text: text})
 		}
 	}
 	for k := range out.Key {
@@ -334,9 +377,9 @@ func layoutLines(c *Chart, id string) svgChart {
 	}
 	out.Groups = append(out.Groups, axes(c, f, H, false))
 	if f.ymin < 0 && f.ymax > 0 {
-		out.Groups = append(out.Groups, svgGroup{Class: "zero", Lines: []svgLine{{num(f.left), num(f.y(0)), num(f.right), num(f.y(0)), "zero"}}})
+		out.Groups = append(out.Groups, svgGroup{Class: "zero", Lines: []svgLine{{coord(f.left), coord(f.y(0)), coord(f.right), coord(f.y(0)), "zero"}}})
 	}
-	out.Clip = &svgRect{num(f.left), num(f.top), num(f.right - f.left), num(f.bottom - f.top), ""}
+	out.Clip = &svgRect{coord(f.left), coord(f.top), coord(f.right - f.left), coord(f.bottom - f.top), ""}
 	curves := svgGroup{Class: "series", Clip: id + "-clip"}
 	faint := len(c.Series) > manySeries
 	for k, s := range c.Series {
@@ -345,7 +388,7 @@ func layoutLines(c *Chart, id string) svgChart {
 			cls += " faint"
 		}
 		out.Legend = append(out.Legend, svgLegend{Name: s.Name, Class: cls})
-		var d strings.Builder
+		var d []byte
 		pen := false
 		for i := range s.X {
 			if i >= len(s.Y) || math.IsNaN(s.Y[i]) || math.IsInf(s.Y[i], 0) || s.X[i] < f.xmin || s.X[i] > f.xmax {
@@ -355,16 +398,15 @@ func layoutLines(c *Chart, id string) svgChart {
 			// The plot area clips the curve; far values are held just
 			// outside it.
 			y := math.Max(f.top-50, math.Min(f.bottom+50, f.y(s.Y[i])))
+			cmd := byte('M')
 			if pen {
-				d.WriteString("L")
-			} else {
-				d.WriteString("M")
+				cmd = 'L'
 			}
-			d.WriteString(num(f.x(s.X[i])) + " " + num(y))
+			d = appendPoint(d, cmd, f.x(s.X[i]), y)
 			pen = true
 		}
-		if d.Len() > 0 {
-			curves.Paths = append(curves.Paths, svgPath{d.String(), "curve " + cls, ""})
+		if len(d) > 0 {
+			curves.Paths = append(curves.Paths, svgPath{string(d), "curve " + cls, ""})
 		}
 	}
 	out.Groups = append(out.Groups, curves)
@@ -374,14 +416,14 @@ func layoutLines(c *Chart, id string) svgChart {
 	for _, m := range c.Marks {
 		if m.HasX && !m.HasY && m.X >= f.xmin && m.X <= f.xmax {
 			x := f.x(m.X)
-			marks.Lines = append(marks.Lines, svgLine{num(x), num(f.top), num(x), num(f.bottom), "refline"})
+			marks.Lines = append(marks.Lines, svgLine{coord(x), coord(f.top), coord(x), coord(f.bottom), "refline"})
 			if pos, ok := p.place(m.Label, labelSize, "start", [][2]float64{{x + 4, f.top + 10}, {x + 4, f.top + 24}}); ok {
-				marks.Texts = append(marks.Texts, svgText{X: num(pos[0]), Y: num(pos[1]), Anchor: "start", Class: "mark-label", Text: m.Label})
+				marks.Texts = append(marks.Texts, svgText{X: coord(pos[0]), Y: coord(pos[1]), Anchor: "start", Class: "mark-label", Text: m.Label})
 			}
 		}
 		if !m.HasX && m.HasY && m.Y >= f.ymin && m.Y <= f.ymax {
 			y := f.y(m.Y)
-			marks.Lines = append(marks.Lines, svgLine{num(f.left), num(y), num(f.right), num(y), "refline"})
+			marks.Lines = append(marks.Lines, svgLine{coord(f.left), coord(y), coord(f.right), coord(y), "refline"})
 		}
 	}
 	for _, m := range c.Marks {
@@ -395,9 +437,9 @@ func layoutLines(c *Chart, id string) svgChart {
 		}
 		switch m.Kind {
 		case "crossover":
-			marks.Paths = append(marks.Paths, svgPath{"M" + num(x) + " " + num(y-5) + "L" + num(x+5) + " " + num(y) + "L" + num(x) + " " + num(y+5) + "L" + num(x-5) + " " + num(y) + "Z", "crossover", ""})
+			marks.Paths = append(marks.Paths, svgPath{"M" + coord(x) + " " + coord(y-5) + "L" + coord(x+5) + " " + coord(y) + "L" + coord(x) + " " + coord(y+5) + "L" + coord(x-5) + " " + coord(y) + "Z", "crossover", ""})
 		default:
-			marks.Circles = append(marks.Circles, svgCircle{num(x), num(y), "4", cls})
+			marks.Circles = append(marks.Circles, svgCircle{coord(x), coord(y), "4", cls})
 		}
 		// Labels try above, below, then further out, on either side.
 		var cands [][2]float64
@@ -416,7 +458,7 @@ func layoutLines(c *Chart, id string) svgChart {
 				if m.Series >= 0 {
 					lc += " t" + strconv.Itoa(m.Series%8)
 				}
-				marks.Texts = append(marks.Texts, svgText{X: num(pos[0]), Y: num(pos[1]), Anchor: anchorFor(k), Class: lc, Text: m.Label})
+				marks.Texts = append(marks.Texts, svgText{X: coord(pos[0]), Y: coord(pos[1]), Anchor: anchorFor(k), Class: lc, Text: m.Label})
 				break
 			}
 		}
@@ -429,4 +471,156 @@ func layoutLines(c *Chart, id string) svgChart {
 // pattern for each round of them, so curves stay apart in grey print.
 func seriesClass(k int) string {
 	return "s" + strconv.Itoa(k%8) + " d" + strconv.Itoa((k/8)%4)
+}
+
+// chartHTML writes a laid-out chart as the "chart" template did with
+// template actions, every label and attribute value escaped as
+// html/template escapes it (escapeHTML).
+func chartHTML(c svgChart) template.HTML {
+	var b strings.Builder
+	n := 2048 + len(c.Title)*2 + len(c.Desc)
+	for _, g := range c.Groups {
+		n += 64 + len(g.Rects)*80 + len(g.Lines)*80 + len(g.Circles)*64 + len(g.Texts)*96
+		for _, p := range g.Paths {
+			n += len(p.D) + 64
+		}
+	}
+	for _, s := range c.Notes {
+		n += len(s) + 12
+	}
+	b.Grow(n)
+	b.WriteString(`<figure class="chart `)
+	escapeHTML(&b, c.Kind)
+	b.WriteString("\">\n<figcaption>")
+	escapeHTML(&b, c.Title)
+	b.WriteString("</figcaption>\n" + `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 `)
+	b.WriteString(strconv.Itoa(c.W))
+	b.WriteByte(' ')
+	b.WriteString(strconv.Itoa(c.H))
+	b.WriteString(`" role="img" aria-labelledby="`)
+	escapeHTML(&b, c.ID)
+	b.WriteString("-title ")
+	escapeHTML(&b, c.ID)
+	b.WriteString("-desc\">\n<title id=\"")
+	escapeHTML(&b, c.ID)
+	b.WriteString(`-title">`)
+	escapeHTML(&b, c.Title)
+	b.WriteString("</title>\n<desc id=\"")
+	escapeHTML(&b, c.ID)
+	b.WriteString(`-desc">`)
+	escapeHTML(&b, c.Desc)
+	b.WriteString("</desc>")
+	if r := c.Clip; r != nil {
+		b.WriteString("\n<defs><clipPath id=\"")
+		escapeHTML(&b, c.ID)
+		b.WriteString(`-clip"><rect`)
+		attr(&b, "x", r.X)
+		attr(&b, "y", r.Y)
+		attr(&b, "width", r.W)
+		attr(&b, "height", r.H)
+		b.WriteString("/></clipPath></defs>")
+	}
+	for i := range c.Groups {
+		g := &c.Groups[i]
+		b.WriteString("\n<g")
+		attr(&b, "class", g.Class)
+		if g.Clip != "" {
+			b.WriteString(` clip-path="url(#`)
+			escapeHTML(&b, g.Clip)
+			b.WriteString(`)"`)
+		}
+		b.WriteByte('>')
+		for _, r := range g.Rects {
+			b.WriteString("<rect")
+			attr(&b, "x", r.X)
+			attr(&b, "y", r.Y)
+			attr(&b, "width", r.W)
+			attr(&b, "height", r.H)
+			attr(&b, "class", r.Class)
+			b.WriteString("/>")
+		}
+		for _, l := range g.Lines {
+			b.WriteString("<line")
+			attr(&b, "x1", l.X1)
+			attr(&b, "y1", l.Y1)
+			attr(&b, "x2", l.X2)
+			attr(&b, "y2", l.Y2)
+			attr(&b, "class", l.Class)
+			b.WriteString("/>")
+		}
+		for _, p := range g.Paths {
+			b.WriteString("<path")
+			attr(&b, "d", p.D)
+			attr(&b, "class", p.Class)
+			if p.Width != "" {
+				attr(&b, "stroke-width", p.Width)
+			}
+			b.WriteString("/>")
+		}
+		for _, ci := range g.Circles {
+			b.WriteString("<circle")
+			attr(&b, "cx", ci.CX)
+			attr(&b, "cy", ci.CY)
+			attr(&b, "r", ci.R)
+			attr(&b, "class", ci.Class)
+			b.WriteString("/>")
+		}
+		for _, t := range g.Texts {
+			b.WriteString("<text")
+			attr(&b, "x", t.X)
+			attr(&b, "y", t.Y)
+			attr(&b, "text-anchor", t.Anchor)
+			attr(&b, "class", t.Class)
+			if t.Rotate != "" {
+				attr(&b, "transform", t.Rotate)
+			}
+			b.WriteByte('>')
+			escapeHTML(&b, t.Text)
+			b.WriteString("</text>")
+		}
+		b.WriteString("\n</g>")
+	}
+	b.WriteString("\n</svg>")
+	if len(c.Legend) > 0 {
+		b.WriteString("\n<ul class=\"legend\">")
+		for _, l := range c.Legend {
+			b.WriteString("\n" + `<li><svg class="swatch" viewBox="0 0 28 10" aria-hidden="true"><line x1="1" y1="5" x2="27" y2="5" class="curve `)
+			escapeHTML(&b, l.Class)
+			b.WriteString(`"/></svg>`)
+			escapeHTML(&b, l.Name)
+			b.WriteString("</li>")
+		}
+		b.WriteString("\n</ul>")
+	}
+	if len(c.Key) > 0 {
+		b.WriteString("\n<dl class=\"key\">")
+		for _, k := range c.Key {
+			b.WriteString("\n<div><dt>")
+			escapeHTML(&b, k.Letter)
+			b.WriteString("</dt><dd>")
+			escapeHTML(&b, k.Text)
+			b.WriteString("</dd></div>")
+		}
+		b.WriteString("\n</dl>")
+	}
+	if len(c.Notes) > 0 {
+		b.WriteString("\n<ul class=\"chart-notes\">")
+		for _, s := range c.Notes {
+			b.WriteString("\n<li>")
+			escapeHTML(&b, s)
+			b.WriteString("</li>")
+		}
+		b.WriteString("\n</ul>")
+	}
+	b.WriteString("\n</figure>")
+	return template.HTML(b.String())
+}
+
+// attr writes ` name="value"`, the value escaped.
+func attr(b *strings.Builder, name, value string) {
+	b.WriteByte(' ')
+	b.WriteString(name)
+	b.WriteString(`="`)
+	escapeHTML(b, value)
+	b.WriteByte('"')
 }
