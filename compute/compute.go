@@ -107,6 +107,9 @@ func compute(memo *parse.Memo, ov *Overrides) (*Report, error) {
 			}
 		}
 	}
+	if ov == nil {
+		e.analyses(memo, rep, compByID)
+	}
 	if len(errs) > 0 {
 		return rep, errs.Err()
 	}

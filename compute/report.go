@@ -26,6 +26,11 @@ type Report struct {
 	Inline map[int]Value
 	// Places holds what each schedule or diagram block shows.
 	Places map[*parse.Place]*Placement
+	// The analysis blocks, in memo order (sensitivity.go, scenario.go,
+	// budget.go).
+	Sensitivities []*Sensitivity
+	Scenarios     []*Scenario
+	Budgets       []*Budget
 }
 
 // Currency is an ISO 4217 code with its symbol and minor-unit decimals.

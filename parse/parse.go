@@ -25,7 +25,7 @@ var kindsWithID = map[string]bool{
 }
 
 // notYet are block kinds of the contract this version does not read yet.
-var notYet = map[string]bool{"sensitivity": true, "risk": true, "scenario": true, "budget": true, "replacement": true}
+var notYet = map[string]bool{"risk": true, "replacement": true}
 
 // ReservedIDs may not be used as alternative ids.
 var ReservedIDs = map[string]bool{"do-nothing": true}
@@ -420,6 +420,12 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 		b = p.expect(head, lines)
 	case "schedule", "diagram":
 		b = p.place(head, lines)
+	case "sensitivity":
+		b = p.sensitivity(head, lines)
+	case "scenario":
+		b = p.scenario(head, lines)
+	case "budget":
+		b = p.budget(head, lines)
 	}
 	if b != nil {
 		p.memo.Blocks = append(p.memo.Blocks, b)

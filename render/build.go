@@ -421,6 +421,8 @@ func (b *builder) worthBlock(blk parse.Block) []Node {
 		}
 	case *parse.Expect:
 		return b.expect(x)
+	case *parse.Sensitivity, *parse.Scenario, *parse.Budget:
+		return b.analysis(x)
 	case *parse.Place:
 		p := b.rep.Places[x]
 		if p == nil || p.Result == nil {

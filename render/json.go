@@ -19,6 +19,7 @@ type jsonReport struct {
 	Alternatives []jsonAlternative `json:"alternatives"`
 	Comparisons  []jsonComparison  `json:"comparisons"`
 	Expectations []jsonExpectation `json:"expectations"`
+	jsonAnalysis
 }
 
 type jsonRate struct {
@@ -164,6 +165,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 	for _, x := range rep.Expectations {
 		out.Expectations = append(out.Expectations, jsonExpectation{Line: x.Line, Text: x.Text, Passed: x.Passed, Detail: x.Detail})
 	}
+	out.jsonAnalysis = analysisJSON(rep)
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")

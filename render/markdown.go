@@ -235,6 +235,8 @@ func mdBlock(rep *compute.Report, f Format, blk parse.Block) string {
 				fmt.Fprintf(&b, "\n> **Warning:** the expectation `%s` on line %d does not hold. The figures above are as computed; the memo's text may rely on something that is no longer true.\n", e.Text, e.Line)
 			}
 		}
+	case *parse.Sensitivity, *parse.Scenario, *parse.Budget:
+		b.WriteString(mdAnalysis(rep, f, x))
 	case *parse.Place:
 		p := rep.Places[x]
 		if p == nil {

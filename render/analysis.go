@@ -1,0 +1,1128 @@
+package render
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"worth/compute"
+	"worth/parse"
+)
+
+// The analysis blocks (sensitivity, scenario, budget) in every writer: the
+// words and tables are laid out once here (analysisText), then written as
+// Markdown (mdAnalysis), as document-model nodes for HTML and PDF
+// (builder.analysis) and as JSON (analysisJSON). Every number comes from
+// the compute.Report.
+
+// ---- words and tables, shared by the writers ----
+
+// aTable is a table of an analysis block before it becomes Markdown or a
+// document table.
+type aTable struct {
+	Caption string
+	Header  []string
+	Rows    [][]string
+	Align   []byte // 'l' or 'r' per column
+	Note    string
+	Bold    []bool // rows to set in bold
+}
+
+// aPart is one piece of an analysis block's output, in order: a paragraph,
+// a table, a list of sentences, a callout, or a chart (document model only).
+type aPart struct {
+	Para    string
+	Table   *aTable
+	Items   []string
+	Callout *Callout
+	Chart   func(b *builder) (Chart, bool)
+	// Text is a plain-text figure for the Markdown writer (a tornado drawn
+	// with characters).
+	Text string
+}
+
+func findSensitivity(rep *compute.Report, src *parse.Sensitivity) *compute.Sensitivity {
+	for _, s := range rep.Sensitivities {
+		if s.Source == src {
+			return s
+		}
+	}
+	return nil
+}
+
+func findScenario(rep *compute.Report, src *parse.Scenario) *compute.Scenario {
+	for _, s := range rep.Scenarios {
+		if s.Source == src {
+			return s
+		}
+	}
+	return nil
+}
+
+func findBudget(rep *compute.Report, src *parse.Budget) *compute.Budget {
+	for _, s := range rep.Budgets {
+		if s.Source == src {
+			return s
+		}
+	}
+	return nil
+}
+
+// analysisParts lays out one analysis block.
+func analysisParts(rep *compute.Report, f Format, blk parse.Block) []aPart {
+	switch x := blk.(type) {
+	case *parse.Sensitivity:
+		if s := findSensitivity(rep, x); s != nil {
+			return sensitivityParts(f, s)
+		}
+	case *parse.Scenario:
+		if s := findScenario(rep, x); s != nil {
+			parts := scenarioParts(f, s)
+			if len(rep.Scenarios) > 1 && rep.Scenarios[len(rep.Scenarios)-1] == s {
+				parts = append(parts, scenarioSummary(f, rep))
+			}
+			return parts
+		}
+	case *parse.Budget:
+		if b := findBudget(rep, x); b != nil {
+			return budgetParts(f, b)
+		}
+	}
+	return nil
+}
+
+// inputValue formats a value of an input: a rate as a percentage, an
+// assumption as a number.
+func inputValue(f Format, rate bool, x float64) string {
+	if rate {
+		return f.Rate(x)
+	}
+	return f.Num(x)
+}
+
+// inputName is how an input is named in the report.
+func inputName(name string, rate bool) string {
+	if rate {
+		return "interest rate"
+	}
+	return name
+}
+
+// inputLabel is an input's name at the head of a column or an axis: an
+// assumption's name as written, "Interest rate" for the rate.
+func inputLabel(name string, rate bool) string {
+	if rate {
+		return "Interest rate"
+	}
+	return name
+}
+
+// change is a signed percentage change from base to x: "+20%", "−38.8%".
+func change(f Format, base, x float64) string {
+	if base == 0 {
+		return ""
+	}
+	d := (x - base) / math.Abs(base) * 100
+	s := strconv.FormatFloat(math.Abs(d), 'f', 1, 64)
+	s = strings.TrimSuffix(s, ".0")
+	switch {
+	case s == "0":
+		return "±0%"
+	case d < 0:
+		return f.Minus + s + "%"
+	}
+	return "+" + s + "%"
+}
+
+// measureName is the decision measure of a sensitivity's margin.
+func sensMeasure(s *compute.Sensitivity) string {
+	if s.Measure == "annual worth" {
+		return "annual worth"
+	}
+	if s.Compare.Horizon.Perpetual() {
+		return "capitalized worth"
+	}
+	return "present worth"
+}
+
+func (s aPart) isZero() bool {
+	return s.Para == "" && s.Table == nil && len(s.Items) == 0 && s.Callout == nil && s.Chart == nil && s.Text == ""
+}
+
+func marginText(f Format, p compute.WhatIf) string {
+	if !p.Valid() {
+		return "invalid"
+	}
+	return f.Money(p.Margin)
+}
+
+func sensitivityParts(f Format, s *compute.Sensitivity) []aPart {
+	c := s.Compare
+	var parts []aPart
+	rec, rival := name(c, s.Recommended), name(c, s.RunnerUp)
+	measure := sensMeasure(s)
+	intro := fmt.Sprintf("How the decision of comparison %s responds to its inputs, one at a time, the others held at their base values. The margin is the %s of %s (recommended) less that of the best other choice, %s: %s at the base values. Where it turns negative, the recommendation changes.",
+		c.ID, measure, rec, rival, f.Money(s.Margin))
+	if s.Recommended == compute.DoNothing {
+		intro = fmt.Sprintf("How the decision of comparison %s responds to its inputs, one at a time, the others held at their base values. Doing nothing is recommended; the margin is minus the %s of the best alternative, %s: %s at the base values. Where it turns negative, an alternative becomes worth doing.",
+			c.ID, measure, rival, f.Money(s.Margin))
+	}
+	parts = append(parts, aPart{Para: intro})
+	if len(s.Swings) > 0 {
+		t := &aTable{
+			Caption: "Sensitivity of comparison " + c.ID + ", widest swing first",
+			Header:  []string{"Input", "Base value", "Low", "High", "Margin at low", "Margin at high", "Recommendation"},
+			Align:   []byte{'l', 'r', 'r', 'r', 'r', 'r', 'l'},
+			Note:    fmt.Sprintf("Margin: %s of %s less that of the best other choice; base %s. Each input is moved alone.", measure, rec, f.Money(s.Margin)),
+		}
+		for _, sw := range s.Swings {
+			lo, hi := inputValue(f, sw.Rate, sw.Low.Value), inputValue(f, sw.Rate, sw.High.Value)
+			if sw.Percent > 0 {
+				lo += " (" + change(f, sw.Base, sw.Low.Value) + ")"
+				hi += " (" + change(f, sw.Base, sw.High.Value) + ")"
+			}
+			t.Rows = append(t.Rows, []string{inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, sw.Base), lo, hi,
+				marginText(f, sw.Low), marginText(f, sw.High), swingVerdict(c, s.Recommended, sw)})
+		}
+		parts = append(parts, aPart{Table: t})
+		parts = append(parts, aPart{Chart: func(b *builder) (Chart, bool) { return b.tornadoChart(s) }, Text: textTornado(f, s)})
+		var invalid []string
+		for _, sw := range s.Swings {
+			for _, p := range []compute.WhatIf{sw.Low, sw.High} {
+				if !p.Valid() {
+					invalid = append(invalid, fmt.Sprintf("At %s = %s the memo cannot be computed: %s", inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, p.Value), p.Invalid))
+				}
+			}
+		}
+		if len(invalid) > 0 {
+			parts = append(parts, aPart{Items: invalid})
+		}
+	}
+	if len(s.Spider) > 0 {
+		parts = append(parts, aPart{Chart: func(b *builder) (Chart, bool) { return b.spiderChart(s) }, Table: spiderTable(f, s)})
+	}
+	for _, sw := range s.Ranges {
+		sw := sw
+		parts = append(parts, aPart{Table: sweepTable(f, s, sw), Chart: func(b *builder) (Chart, bool) { return b.sweepChart(s, sw) }})
+		parts = append(parts, aPart{Para: sweepSentence(f, s, sw)})
+	}
+	if len(s.Breakevens) > 0 {
+		call := &Callout{Kind: "note", Title: "Breakeven values"}
+		for _, be := range s.Breakevens {
+			call.Items = append(call.Items, breakevenSentence(f, s, be))
+		}
+		parts = append(parts, aPart{Callout: call})
+	}
+	return parts
+}
+
+// swingVerdict says whether a swing changes the recommendation.
+func swingVerdict(c *compute.Comparison, rec string, sw *compute.Swing) string {
+	var ch []string
+	if sw.Low.Valid() && sw.Low.Recommended != rec {
+		ch = append(ch, name(c, sw.Low.Recommended)+" at low")
+	}
+	if sw.High.Valid() && sw.High.Recommended != rec {
+		ch = append(ch, name(c, sw.High.Recommended)+" at high")
+	}
+	if len(ch) == 0 {
+		return "holds"
+	}
+	return "changes: " + strings.Join(ch, "; ")
+}
+
+// textTornado draws the tornado with characters for the Markdown writer:
+// one bar per input from its lower to its higher margin, on a common
+// scale, with the base margin and zero marked.
+func textTornado(f Format, s *compute.Sensitivity) string {
+	const width = 40
+	lo, hi := math.Min(0, s.Margin), math.Max(0, s.Margin)
+	for _, sw := range s.Swings {
+		for _, p := range []compute.WhatIf{sw.Low, sw.High} {
+			if p.Valid() {
+				lo, hi = math.Min(lo, p.Margin), math.Max(hi, p.Margin)
+			}
+		}
+	}
+	if hi <= lo {
+		return ""
+	}
+	col := func(x float64) int { return int(math.Round((x - lo) / (hi - lo) * (width - 1))) }
+	nameW := 0
+	for _, sw := range s.Swings {
+		nameW = max(nameW, len([]rune(inputName(sw.Name, sw.Rate))))
+	}
+	var b strings.Builder
+	for _, sw := range s.Swings {
+		row := []rune(strings.Repeat(" ", width))
+		a, z := s.Margin, s.Margin
+		for _, p := range []compute.WhatIf{sw.Low, sw.High} {
+			if p.Valid() {
+				a, z = math.Min(a, p.Margin), math.Max(z, p.Margin)
+			}
+		}
+		for k := col(a); k <= col(z); k++ {
+			row[k] = '█'
+		}
+		if k := col(0); row[k] == ' ' {
+			row[k] = '┆'
+		}
+		row[col(s.Margin)] = '│'
+		n := inputName(sw.Name, sw.Rate)
+		fmt.Fprintf(&b, "%s%s  %s  %s to %s\n", n, strings.Repeat(" ", nameW-len([]rune(n))), string(row), f.Money(a), f.Money(z))
+	}
+	fmt.Fprintf(&b, "%s  │ base margin %s; ┆ zero: the decision changes past it\n", strings.Repeat(" ", nameW), f.Money(s.Margin))
+	return b.String()
+}
+
+// spiderTable is the spider chart as a table: the margin at each
+// percentage change of each input.
+func spiderTable(f Format, s *compute.Sensitivity) *aTable {
+	line := s.Spider[0]
+	t := &aTable{
+		Caption: "Margin against the change in each input",
+		Header:  []string{"Input"},
+		Align:   []byte{'l'},
+	}
+	for _, p := range line.Percent {
+		t.Header = append(t.Header, signedPct(f, p))
+		t.Align = append(t.Align, 'r')
+	}
+	same := true
+	for _, l := range s.Spider {
+		if len(l.Percent) != len(line.Percent) {
+			same = false
+		}
+		for k := range l.Percent {
+			if same && l.Percent[k] != line.Percent[k] {
+				same = false
+			}
+		}
+	}
+	if !same {
+		// Inputs swung by different percentages: columns by step.
+		t.Header = []string{"Input"}
+		for k := range line.Percent {
+			t.Header = append(t.Header, fmt.Sprintf("step %d", k+1))
+		}
+	}
+	for _, l := range s.Spider {
+		row := []string{inputName(l.Name, l.Rate)}
+		for k, p := range l.Points {
+			cell := marginText(f, p)
+			if !same {
+				cell = signedPct(f, l.Percent[k]) + ": " + cell
+			}
+			row = append(row, cell)
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	return t
+}
+
+func signedPct(f Format, p float64) string {
+	s := strconv.FormatFloat(math.Abs(p)*100, 'f', 1, 64)
+	s = strings.TrimSuffix(s, ".0") + "%"
+	switch {
+	case p < 0:
+		return f.Minus + s
+	case p > 0:
+		return "+" + s
+	}
+	return "0%"
+}
+
+// sweepTable shows a range's sweep at a few of its values and at each
+// change of recommendation.
+func sweepTable(f Format, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
+	c := s.Compare
+	word := capital(sensMeasure(s))
+	t := &aTable{
+		Caption: fmt.Sprintf("%s across %s from %s to %s", word, inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To)),
+		Header:  []string{inputLabel(sw.Name, sw.Rate)},
+		Align:   []byte{'r'},
+	}
+	for _, r := range c.Results {
+		t.Header = append(t.Header, r.Alt.Name)
+		t.Align = append(t.Align, 'r')
+	}
+	t.Header = append(t.Header, "Recommended")
+	t.Align = append(t.Align, 'l')
+	// A few rows: the ends and the multiples of a round step.
+	step := compute.NiceStep((sw.To - sw.From) / 6)
+	shown := 0
+	for k, p := range sw.Points {
+		if q := p.Value / step; k != 0 && k != len(sw.Points)-1 &&
+			(math.Abs(q-math.Round(q)) > 1e-6 || p.Value-sw.From < step/2 || sw.To-p.Value < step/2) {
+			continue
+		}
+		shown++
+		row := []string{inputValue(f, sw.Rate, p.Value)}
+		for j := range c.Results {
+			if !p.Valid() {
+				row = append(row, "—")
+			} else {
+				row = append(row, f.Money(p.Worths[j]))
+			}
+		}
+		if p.Valid() {
+			row = append(row, name(c, p.Recommended))
+		} else {
+			row = append(row, "invalid: "+p.Invalid)
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	t.Note = fmt.Sprintf("Computed at %d values from %s to %s; %d shown here, all in the chart.", len(sw.Points), inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), shown)
+	return t
+}
+
+// sweepSentence says where a sweep changes the recommendation.
+func sweepSentence(f Format, s *compute.Sensitivity, sw *compute.Sweep) string {
+	c := s.Compare
+	n := inputName(sw.Name, sw.Rate)
+	var parts []string
+	for _, ch := range sw.Changes {
+		at := inputValue(f, sw.Rate, ch.At)
+		if !ch.Exact {
+			at = "about " + at
+		}
+		parts = append(parts, fmt.Sprintf("from %s to %s at %s = %s", name(c, ch.From), name(c, ch.To), n, at))
+	}
+	invalid := 0
+	for _, p := range sw.Points {
+		if !p.Valid() {
+			invalid++
+		}
+	}
+	var out string
+	if len(parts) == 0 {
+		first := ""
+		for _, p := range sw.Points {
+			if p.Valid() {
+				first = p.Recommended
+				break
+			}
+		}
+		if first == "" {
+			return fmt.Sprintf("Across %s from %s to %s the memo cannot be computed.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To))
+		}
+		out = fmt.Sprintf("Across %s from %s to %s the recommendation stays %s.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), name(c, first))
+	} else {
+		out = fmt.Sprintf("Across %s from %s to %s the recommendation changes %s.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), strings.Join(parts, ", then "))
+	}
+	if invalid > 0 {
+		out += fmt.Sprintf(" At %d of the %d values the memo cannot be computed (the table says why); the chart leaves them out.", invalid, len(sw.Points))
+	}
+	return out
+}
+
+// breakevenSentence states one breakeven, or that none was found.
+func breakevenSentence(f Format, s *compute.Sensitivity, be *compute.Breakeven) string {
+	c := s.Compare
+	n := inputLabel(be.Name, be.Rate)
+	base := inputValue(f, be.Rate, be.Base)
+	switch {
+	case be.NoEffect:
+		return fmt.Sprintf("%s: does not affect comparison %s; there is no breakeven.", n, c.ID)
+	case be.Tied:
+		return fmt.Sprintf("%s: the alternatives are tied at the base value, %s, which is itself the breakeven.", n, base)
+	case be.Value == nil:
+		out := fmt.Sprintf("%s: no breakeven between %s and %s; %s stays recommended throughout (base %s).", n,
+			inputValue(f, be.Rate, be.SearchedLow), inputValue(f, be.Rate, be.SearchedHigh), name(c, s.Recommended), base)
+		for _, l := range be.Limits {
+			out += " The search stopped " + l + "."
+		}
+		return out
+	}
+	v := *be.Value
+	out := fmt.Sprintf("%s: the recommendation changes from %s to %s at %s (base %s, %s).", n, name(c, s.Recommended), name(c, be.To),
+		inputValue(f, be.Rate, v), base, change(f, be.Base, v))
+	if be.Verified {
+		out += fmt.Sprintf(" Substituted back, the margin there is %s and the recommendation differs just on either side.", f.Money(be.MarginAt))
+	} else {
+		out += " Substituted back, this value could not be confirmed (the margin jumps there), so treat it as approximate."
+	}
+	if be.Other != nil {
+		out += fmt.Sprintf(" On the other side of the base value it changes to %s at %s.", name(c, be.OtherTo), inputValue(f, be.Rate, *be.Other))
+	}
+	return out
+}
+
+// ---- scenarios ----
+
+func scenarioParts(f Format, s *compute.Scenario) []aPart {
+	var parts []aPart
+	var vals []string
+	for _, v := range s.Values {
+		n := v.Name
+		val := inputValue(f, v.Rate, v.Value)
+		text := n + " = " + val
+		if !v.Rate && strings.TrimSpace(v.Text) != val && strings.TrimSpace(v.Text) != f.Num(v.Value) && !plainNumber(v.Text) {
+			text = fmt.Sprintf("%s = %s = %s", n, v.Text, val)
+		}
+		if !math.IsNaN(v.Base) {
+			text += " (base " + inputValue(f, v.Rate, v.Base) + ")"
+		}
+		vals = append(vals, text)
+	}
+	title := "Scenario " + s.ID
+	if s.Name != s.ID {
+		title += ": " + s.Name
+	}
+	parts = append(parts, aPart{Para: title + ". " + strings.Join(vals, "; ") + ". Every other input keeps its base value, and every assumption that uses a changed one follows it."})
+	var changed []string
+	for _, r := range s.Comparisons {
+		c := r.Base
+		word := capital(measureWord(c))
+		if c.Horizon.Perpetual() && word == "Present worth" {
+			word = "Capitalized worth"
+		}
+		t := &aTable{
+			Caption: fmt.Sprintf("Comparison %s under scenario %s", c.ID, s.ID),
+			Header:  []string{"Alternative", word + ", base case", word + ", scenario", "Change"},
+			Align:   []byte{'l', 'r', 'r', 'r'},
+		}
+		for k, res := range c.Results {
+			u := r.Under.Results[k]
+			b, x := measureOf(c, res), measureOf(r.Under, u)
+			t.Rows = append(t.Rows, []string{res.Alt.Name, f.Money(b), f.Money(x), signedMoney(f, x-b)})
+			t.Bold = append(t.Bold, false)
+		}
+		t.Rows = append(t.Rows, []string{"Recommended", name(c, c.Recommended), name(r.Under, r.Under.Recommended), ""})
+		t.Bold = append(t.Bold, true)
+		t.Note = fmt.Sprintf("Rate %s in the base case, %s under the scenario.", f.Rate(c.Rate.Effective), f.Rate(r.Under.Rate.Effective))
+		parts = append(parts, aPart{Table: t})
+		if r.Changed() {
+			changed = append(changed, fmt.Sprintf("comparison %s recommends %s instead of %s", c.ID, name(r.Under, r.Under.Recommended), name(c, c.Recommended)))
+		}
+	}
+	if len(changed) > 0 {
+		parts = append(parts, aPart{Callout: &Callout{Kind: "warning", Title: "The recommendation changes", Text: "Under scenario " + s.Name + ", " + strings.Join(changed, "; ") + "."}})
+	} else if len(s.Comparisons) > 0 {
+		parts = append(parts, aPart{Para: "Under this scenario no recommendation changes."})
+	}
+	return parts
+}
+
+// plainNumber reports whether text is a number as written, with no names.
+func plainNumber(s string) bool {
+	for _, r := range s {
+		if r >= 'a' && r <= 'z' && r != 'k' || r >= 'A' && r <= 'Z' && r != 'M' || r == '_' {
+			return false
+		}
+	}
+	return true
+}
+
+func measureOf(c *compute.Comparison, r *compute.Result) float64 {
+	if c.DecideBy == "annual worth" {
+		return r.AW
+	}
+	return r.PW
+}
+
+func signedMoney(f Format, x float64) string {
+	if x > 0 && f.Money(x) != f.Money(0) {
+		return "+" + f.Money(x)
+	}
+	return f.Money(x)
+}
+
+// scenarioSummary is the recommendation of every comparison in the base
+// case and under every scenario, shown after the last scenario block.
+func scenarioSummary(f Format, rep *compute.Report) aPart {
+	t := &aTable{Caption: "Recommendations under every scenario", Header: []string{"Comparison", "Base case"}, Align: []byte{'l', 'l'}}
+	for _, s := range rep.Scenarios {
+		t.Header = append(t.Header, s.Name)
+		t.Align = append(t.Align, 'l')
+	}
+	for _, c := range rep.Comparisons {
+		row := []string{c.ID, name(c, c.Recommended)}
+		for _, s := range rep.Scenarios {
+			cell := "—"
+			for _, r := range s.Comparisons {
+				if r.Base == c {
+					cell = name(r.Under, r.Under.Recommended)
+					if r.Changed() {
+						cell += " (changed)"
+					}
+				}
+			}
+			row = append(row, cell)
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	return aPart{Table: t}
+}
+
+// ---- budgets ----
+
+func budgetParts(f Format, bu *compute.Budget) []aPart {
+	var parts []aPart
+	intro := fmt.Sprintf("Budget %s: at most one alternative from each of %d projects, or none, chosen to give the greatest total present worth with total first cost within %s. The choice is exact: every undominated combination was weighed, not ranked one by one.", bu.ID, len(bu.Projects), f.Money(bu.Limit))
+	parts = append(parts, aPart{Para: intro})
+	if !bu.Feasible {
+		parts = append(parts, aPart{Callout: &Callout{Kind: "warning", Title: "Nothing fits", Text: fmt.Sprintf("The required projects alone cost more than the limit of %s; no program fits.", f.Money(bu.Limit))}})
+	}
+	t := &aTable{
+		Caption: "Program within " + f.Money(bu.Limit),
+		Header:  []string{"Project", "Chosen", "First cost", "Present worth", "Alternatives"},
+		Align:   []byte{'l', 'l', 'r', 'r', 'l'},
+	}
+	var left []string
+	for _, p := range bu.Projects {
+		c := p.Comparison
+		proj := c.ID
+		if p.Required {
+			proj += " (required)"
+		}
+		var opts []string
+		for _, o := range p.Options {
+			opts = append(opts, fmt.Sprintf("%s %s / %s", o.Name, f.Money(o.FirstCost), f.Money(o.PW)))
+		}
+		if ch := p.Chosen(); ch != nil {
+			t.Rows = append(t.Rows, []string{proj, ch.Name, f.Money(ch.FirstCost), f.Money(ch.PW), strings.Join(opts, "; ")})
+		} else {
+			t.Rows = append(t.Rows, []string{proj, "none", "", "", strings.Join(opts, "; ")})
+			left = append(left, leftOutReason(f, p, bu))
+		}
+		t.Bold = append(t.Bold, false)
+	}
+	if bu.Feasible {
+		t.Rows = append(t.Rows, []string{"Total", "", f.Money(bu.TotalFirstCost), f.Money(bu.TotalPW), fmt.Sprintf("%s of the limit unspent", f.Money(bu.Limit-bu.TotalFirstCost))})
+		t.Bold = append(t.Bold, true)
+	}
+	t.Note = "Alternatives: each one's first cost / present worth in its comparison. Present worths are taken at each comparison's own rate and horizon."
+	parts = append(parts, aPart{Table: t})
+	if len(left) > 0 {
+		parts = append(parts, aPart{Para: "Left out:", Items: left})
+	}
+	g := &aTable{
+		Caption: "The best program as the limit grows",
+		Header:  []string{"Limit", "Chosen", "First cost", "Present worth"},
+		Align:   []byte{'r', 'l', 'r', 'r'},
+	}
+	for _, s := range bu.Growth {
+		lim := f.Money(s.Limit) + " (" + strconv.Itoa(int(math.Round(s.Limit/bu.Limit*100))) + "%)"
+		if !s.Feasible {
+			g.Rows = append(g.Rows, []string{lim, "nothing fits", "", ""})
+			g.Bold = append(g.Bold, false)
+			continue
+		}
+		g.Rows = append(g.Rows, []string{lim, chosenNames(bu, s.Chosen), f.Money(s.TotalFirstCost), f.Money(s.TotalPW)})
+		g.Bold = append(g.Bold, math.Abs(s.Limit-bu.Limit) < 1e-9*bu.Limit)
+	}
+	parts = append(parts, aPart{Table: g, Chart: func(b *builder) (Chart, bool) { return b.budgetChart(bu) }})
+	if bu.Next != nil && bu.Feasible {
+		n := bu.Next
+		parts = append(parts, aPart{Para: fmt.Sprintf("The next step up: a limit of %s (%s more) buys %s, raising the total present worth by %s to %s.",
+			f.Money(n.TotalFirstCost), f.Money(n.TotalFirstCost-bu.Limit), chosenNames(bu, n.Chosen), f.Money(n.TotalPW-bu.TotalPW), f.Money(n.TotalPW))})
+	} else if bu.Feasible {
+		parts = append(parts, aPart{Para: "No larger limit would add present worth: every project already contributes its best alternative, or none is worth its cost."})
+	}
+	return parts
+}
+
+// leftOutReason says why a project contributes nothing.
+func leftOutReason(f Format, p *compute.BudgetProject, bu *compute.Budget) string {
+	c := p.Comparison
+	best := -1
+	for k, o := range p.Options {
+		if best < 0 || o.PW > p.Options[best].PW {
+			best = k
+		}
+	}
+	if best < 0 || p.Options[best].PW <= 0 {
+		if c.CostOnly {
+			return fmt.Sprintf("%s: every alternative only costs money (no present worth above zero); mark it required to fund its least-cost alternative.", c.ID)
+		}
+		return fmt.Sprintf("%s: no alternative has a positive present worth.", c.ID)
+	}
+	o := p.Options[best]
+	return fmt.Sprintf("%s: its best alternative, %s (%s, first cost %s), does not fit beside better uses of the limit.", c.ID, o.Name, f.Money(o.PW), f.Money(o.FirstCost))
+}
+
+// chosenNames lists chosen alternatives by name with their project.
+func chosenNames(bu *compute.Budget, ids []string) string {
+	if len(ids) == 0 {
+		return "nothing"
+	}
+	var out []string
+	for _, id := range ids {
+		for _, p := range bu.Projects {
+			for _, o := range p.Options {
+				if o.ID == id {
+					out = append(out, o.Name)
+				}
+			}
+		}
+	}
+	return strings.Join(out, ", ")
+}
+
+// ---- Markdown ----
+
+// mdAnalysis writes an analysis block as Markdown.
+func mdAnalysis(rep *compute.Report, f Format, blk parse.Block) string {
+	var b strings.Builder
+	for _, p := range analysisParts(rep, f, blk) {
+		if p.Para != "" {
+			b.WriteString(escapeMD(p.Para) + "\n\n")
+		}
+		if p.Table != nil {
+			if p.Table.Caption != "" {
+				fmt.Fprintf(&b, "**%s**\n\n", escapeMD(p.Table.Caption))
+			}
+			right := make([]bool, len(p.Table.Align))
+			for k, a := range p.Table.Align {
+				right[k] = a == 'r'
+			}
+			table(&b, p.Table.Header, p.Table.Rows, right)
+			if p.Table.Note != "" {
+				fmt.Fprintf(&b, "\n%s\n", escapeMD(p.Table.Note))
+			}
+			b.WriteString("\n")
+		}
+		if p.Text != "" {
+			for _, l := range strings.Split(strings.TrimRight(p.Text, "\n"), "\n") {
+				b.WriteString("    " + l + "\n")
+			}
+			b.WriteString("\n")
+		}
+		if len(p.Items) > 0 {
+			for _, it := range p.Items {
+				fmt.Fprintf(&b, "- %s\n", escapeMD(it))
+			}
+			b.WriteString("\n")
+		}
+		if p.Callout != nil {
+			c := p.Callout
+			fmt.Fprintf(&b, "> **%s.**", escapeMD(c.Title))
+			if c.Text != "" {
+				fmt.Fprintf(&b, " %s", escapeMD(c.Text))
+			}
+			b.WriteString("\n")
+			for _, it := range c.Items {
+				fmt.Fprintf(&b, ">\n> - %s\n", escapeMD(it))
+			}
+			b.WriteString("\n")
+		}
+	}
+	return strings.TrimRight(b.String(), "\n") + "\n"
+}
+
+// ---- the document model ----
+
+// analysis lays out an analysis block as document nodes.
+func (b *builder) analysis(blk parse.Block) []Node {
+	var out []Node
+	h := blk.Head()
+	src := fmt.Sprintf("%s %s, %s", h.Kind, h.ID, lineRange(h))
+	for _, p := range analysisParts(b.rep, b.f, blk) {
+		if p.Para != "" {
+			out = append(out, Paragraph{Text: []Inline{{Text: p.Para}}})
+		}
+		if len(p.Items) > 0 {
+			l := List{}
+			for _, it := range p.Items {
+				l.Items = append(l.Items, []Node{Paragraph{Text: []Inline{{Text: it}}}})
+			}
+			out = append(out, l)
+		}
+		if p.Chart != nil {
+			if ch, ok := p.Chart(b); ok {
+				ch.Source = src
+				out = append(out, ch)
+			}
+		}
+		if p.Table != nil {
+			t := Table{Caption: p.Table.Caption, Header: p.Table.Header, Rows: p.Table.Rows, Align: p.Table.Align, Note: p.Table.Note, Source: src}
+			if len(p.Table.Bold) == len(p.Table.Rows) {
+				t.BoldRows = p.Table.Bold
+			}
+			out = append(out, t)
+		}
+		if p.Callout != nil {
+			out = append(out, *p.Callout)
+		}
+	}
+	return out
+}
+
+// tornadoChart is the tornado of a sensitivity block. Until the HTML and
+// PDF writers draw horizontal bars, it is given as a table only (see
+// sensitivityParts); the chart node is not emitted.
+func (b *builder) tornadoChart(s *compute.Sensitivity) (Chart, bool) {
+	return Chart{}, false
+}
+
+// spiderChart is the margin against the percentage change of each input.
+func (b *builder) spiderChart(s *compute.Sensitivity) (Chart, bool) {
+	ch := Chart{
+		Kind:    "lines",
+		Title:   fmt.Sprintf("Margin of %s against the change in each input", name(s.Compare, s.Recommended)),
+		XLabel:  "Change from the base value",
+		YLabel:  "Margin (" + sensMeasure(s) + ")",
+		XFormat: "percent",
+		YFormat: "money",
+	}
+	xlo, xhi := 0.0, 0.0
+	ylo, yhi := math.Min(0, s.Margin), math.Max(0, s.Margin)
+	var alt []string
+	for _, l := range s.Spider {
+		se := Series{Name: inputName(l.Name, l.Rate)}
+		for k, p := range l.Points {
+			se.X = append(se.X, l.Percent[k])
+			y := math.NaN()
+			if p.Valid() {
+				y = p.Margin
+				ylo, yhi = math.Min(ylo, y), math.Max(yhi, y)
+			}
+			se.Y = append(se.Y, y)
+			xlo, xhi = math.Min(xlo, l.Percent[k]), math.Max(xhi, l.Percent[k])
+		}
+		ch.Series = append(ch.Series, se)
+		first, last := l.Points[0], l.Points[len(l.Points)-1]
+		alt = append(alt, fmt.Sprintf("%s from %s at %s to %s at %s", se.Name, marginText(b.f, first), signedPct(b.f, l.Percent[0]), marginText(b.f, last), signedPct(b.f, l.Percent[len(l.Percent)-1])))
+	}
+	if ylo < 0 && yhi > 0 {
+		ch.Marks = append(ch.Marks, Mark{Y: 0, HasY: true, Label: "zero margin: the decision changes", Series: -1})
+	}
+	ch.XMin, ch.XMax, ch.XTicks = b.axis(xlo, xhi, 9, "percent", true)
+	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
+	ch.Alt = fmt.Sprintf("Margin of %s over the best other choice as each input changes alone, the base margin being %s: %s.", name(s.Compare, s.Recommended), b.f.Money(s.Margin), strings.Join(alt, "; "))
+	return ch, true
+}
+
+// sweepChart is each alternative's worth across a range of one input,
+// with the base value and the values where the recommendation changes.
+func (b *builder) sweepChart(s *compute.Sensitivity, sw *compute.Sweep) (Chart, bool) {
+	c := s.Compare
+	xf := "number"
+	if sw.Rate {
+		xf = "percent"
+	}
+	word := capital(sensMeasure(s))
+	ch := Chart{
+		Kind:    "lines",
+		Title:   fmt.Sprintf("%s across %s", word, inputName(sw.Name, sw.Rate)),
+		XLabel:  inputLabel(sw.Name, sw.Rate),
+		YLabel:  word,
+		XFormat: xf,
+		YFormat: "money",
+	}
+	ylo, yhi := math.Inf(1), math.Inf(-1)
+	for k, r := range c.Results {
+		se := Series{Name: r.Alt.Name, Emphasis: leading(c, r.Alt.ID)}
+		for _, p := range sw.Points {
+			se.X = append(se.X, p.Value)
+			y := math.NaN()
+			if p.Valid() {
+				y = p.Worths[k]
+				ylo, yhi = math.Min(ylo, y), math.Max(yhi, y)
+			}
+			se.Y = append(se.Y, y)
+		}
+		ch.Series = append(ch.Series, se)
+	}
+	if math.IsInf(ylo, 1) {
+		return Chart{}, false
+	}
+	if sw.Base >= sw.From && sw.Base <= sw.To {
+		ch.Marks = append(ch.Marks, Mark{X: sw.Base, HasX: true, Label: "base " + inputValue(b.f, sw.Rate, sw.Base), Series: -1, Kind: "rate"})
+	}
+	for _, x := range sw.Changes {
+		if math.IsNaN(x.Worth) {
+			continue
+		}
+		ch.Marks = append(ch.Marks, Mark{X: x.At, Y: x.Worth, HasX: true, HasY: true, Label: "changes at " + inputValue(b.f, sw.Rate, x.At), Series: -1, Kind: "crossover"})
+	}
+	ch.XMin, ch.XMax, ch.XTicks = b.axis(sw.From, sw.To, 8, xf, true)
+	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
+	ch.Alt = sweepSentence(b.f, s, sw)
+	return ch, true
+}
+
+// budgetChart is the best total present worth against the limit, a step
+// for each program of the growth table.
+func (b *builder) budgetChart(bu *compute.Budget) (Chart, bool) {
+	return Chart{}, false
+}
+
+// ---- JSON ----
+
+// jsonAnalysis holds the analysis blocks' arrays of the JSON output.
+type jsonAnalysis struct {
+	Sensitivities []jsonSensitivity `json:"sensitivities,omitempty"`
+	Scenarios     []jsonScenario    `json:"scenarios,omitempty"`
+	Budgets       []jsonBudget      `json:"budgets,omitempty"`
+}
+
+type jsonSensitivity struct {
+	ID          string           `json:"id"`
+	Compare     string           `json:"compare"`
+	Measure     string           `json:"measure"`
+	Recommended string           `json:"recommended"`
+	RunnerUp    string           `json:"runner_up"`
+	Margin      float64          `json:"margin"`
+	Swings      []jsonSwing      `json:"swings"`
+	Breakevens  []jsonBreakeven  `json:"breakevens"`
+	Ranges      []jsonSweep      `json:"ranges"`
+	Spider      []jsonSpiderLine `json:"spider"`
+	Evaluations int              `json:"evaluations"`
+}
+
+type jsonSwing struct {
+	Name            string   `json:"name"`
+	BaseValue       float64  `json:"base_value"`
+	Percent         *float64 `json:"percent"`
+	LowValue        float64  `json:"low_value"`
+	HighValue       float64  `json:"high_value"`
+	LowMargin       *float64 `json:"low_margin"`
+	HighMargin      *float64 `json:"high_margin"`
+	LowRecommended  *string  `json:"low_recommended"`
+	HighRecommended *string  `json:"high_recommended"`
+	LowInvalid      string   `json:"low_invalid,omitempty"`
+	HighInvalid     string   `json:"high_invalid,omitempty"`
+}
+
+type jsonBreakeven struct {
+	Name         string   `json:"name"`
+	Value        *float64 `json:"value"`
+	BaseValue    float64  `json:"base_value"`
+	Recommended  *string  `json:"recommended_beyond"`
+	Verified     bool     `json:"verified"`
+	MarginAt     *float64 `json:"margin_at_value"`
+	Other        *float64 `json:"other_value"`
+	SearchedLow  float64  `json:"searched_low"`
+	SearchedHigh float64  `json:"searched_high"`
+	Limits       []string `json:"search_limits,omitempty"`
+	NoEffect     bool     `json:"no_effect,omitempty"`
+	Tied         bool     `json:"tied,omitempty"`
+}
+
+type jsonWhatIf struct {
+	Value       float64             `json:"value"`
+	Margin      *float64            `json:"margin"`
+	Recommended *string             `json:"recommended"`
+	Worths      map[string]*float64 `json:"worths,omitempty"`
+	Invalid     string              `json:"invalid,omitempty"`
+}
+
+type jsonSweep struct {
+	Name      string       `json:"name"`
+	From      float64      `json:"from"`
+	To        float64      `json:"to"`
+	BaseValue float64      `json:"base_value"`
+	Points    []jsonWhatIf `json:"points"`
+	Changes   []jsonChange `json:"changes"`
+}
+
+type jsonChange struct {
+	Value float64 `json:"value"`
+	From  string  `json:"from"`
+	To    string  `json:"to"`
+	Exact bool    `json:"exact"`
+}
+
+type jsonSpiderLine struct {
+	Name    string       `json:"name"`
+	Percent []float64    `json:"percent"`
+	Points  []jsonWhatIf `json:"points"`
+}
+
+type jsonScenario struct {
+	ID          string               `json:"id"`
+	Name        string               `json:"name"`
+	Line        int                  `json:"line"`
+	Overrides   []jsonOverride       `json:"overrides"`
+	Comparisons []jsonScenarioResult `json:"comparisons"`
+}
+
+type jsonOverride struct {
+	Name      string   `json:"name"`
+	Value     float64  `json:"value"`
+	BaseValue *float64 `json:"base_value"`
+	Text      string   `json:"text"`
+	Line      int      `json:"line"`
+}
+
+type jsonScenarioResult struct {
+	ID              string              `json:"id"`
+	Rate            float64             `json:"rate"`
+	Recommended     string              `json:"recommended"`
+	BaseRecommended string              `json:"base_recommended"`
+	Changed         bool                `json:"changed"`
+	Margin          float64             `json:"margin"`
+	Results         []jsonScenarioWorth `json:"results"`
+}
+
+type jsonScenarioWorth struct {
+	Alternative      string  `json:"alternative"`
+	PresentWorth     float64 `json:"present_worth"`
+	AnnualWorth      float64 `json:"annual_worth"`
+	BasePresentWorth float64 `json:"base_present_worth"`
+	BaseAnnualWorth  float64 `json:"base_annual_worth"`
+}
+
+type jsonBudget struct {
+	ID                string              `json:"id"`
+	Limit             float64             `json:"limit"`
+	Feasible          bool                `json:"feasible"`
+	Chosen            []string            `json:"chosen"`
+	TotalFirstCost    float64             `json:"total_first_cost"`
+	TotalPresentWorth float64             `json:"total_present_worth"`
+	LeftOut           []string            `json:"left_out"`
+	Projects          []jsonBudgetProject `json:"projects"`
+	Growth            []jsonBudgetStep    `json:"growth"`
+	Next              *jsonBudgetStep     `json:"next"`
+}
+
+type jsonBudgetProject struct {
+	Compare  string             `json:"compare"`
+	Required bool               `json:"required"`
+	Chosen   *string            `json:"chosen"`
+	Options  []jsonBudgetOption `json:"options"`
+}
+
+type jsonBudgetOption struct {
+	Alternative  string  `json:"alternative"`
+	FirstCost    float64 `json:"first_cost"`
+	PresentWorth float64 `json:"present_worth"`
+}
+
+type jsonBudgetStep struct {
+	Limit             float64  `json:"limit"`
+	Feasible          bool     `json:"feasible"`
+	Chosen            []string `json:"chosen"`
+	TotalFirstCost    float64  `json:"total_first_cost"`
+	TotalPresentWorth float64  `json:"total_present_worth"`
+}
+
+// finite is x, or nil (null) where it is NaN or infinite.
+func finite(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return &x
+}
+
+func strOrNil(s string) *string {
+	if s == "" {
+		return nil
+	}
+	return &s
+}
+
+func jsonPoint(c *compute.Comparison, p compute.WhatIf, worths bool) jsonWhatIf {
+	j := jsonWhatIf{Value: p.Value, Margin: finite(p.Margin), Invalid: p.Invalid}
+	if p.Valid() {
+		j.Recommended = strOrNil(p.Recommended)
+		if worths {
+			j.Worths = map[string]*float64{}
+			for k, r := range c.Results {
+				j.Worths[r.Alt.ID] = finite(p.Worths[k])
+			}
+		}
+	}
+	return j
+}
+
+// analysisJSON builds the analysis arrays of the JSON output.
+func analysisJSON(rep *compute.Report) jsonAnalysis {
+	var out jsonAnalysis
+	for _, s := range rep.Sensitivities {
+		c := s.Compare
+		js := jsonSensitivity{ID: s.ID, Compare: c.ID, Measure: s.Measure, Recommended: s.Recommended, RunnerUp: s.RunnerUp,
+			Margin: s.Margin, Swings: []jsonSwing{}, Breakevens: []jsonBreakeven{}, Ranges: []jsonSweep{}, Spider: []jsonSpiderLine{},
+			Evaluations: s.Evaluations}
+		for _, sw := range s.Swings {
+			j := jsonSwing{Name: sw.Name, BaseValue: sw.Base, LowValue: sw.Low.Value, HighValue: sw.High.Value,
+				LowMargin: finite(sw.Low.Margin), HighMargin: finite(sw.High.Margin), LowInvalid: sw.Low.Invalid, HighInvalid: sw.High.Invalid}
+			if sw.Percent > 0 {
+				j.Percent = finite(sw.Percent)
+			}
+			if sw.Low.Valid() {
+				j.LowRecommended = strOrNil(sw.Low.Recommended)
+			}
+			if sw.High.Valid() {
+				j.HighRecommended = strOrNil(sw.High.Recommended)
+			}
+			js.Swings = append(js.Swings, j)
+		}
+		for _, be := range s.Breakevens {
+			j := jsonBreakeven{Name: be.Name, Value: be.Value, BaseValue: be.Base, Verified: be.Verified, Other: be.Other,
+				SearchedLow: be.SearchedLow, SearchedHigh: be.SearchedHigh, Limits: be.Limits, NoEffect: be.NoEffect, Tied: be.Tied}
+			if be.Value != nil {
+				j.Recommended = strOrNil(be.To)
+				j.MarginAt = finite(be.MarginAt)
+			}
+			js.Breakevens = append(js.Breakevens, j)
+		}
+		for _, sw := range s.Ranges {
+			j := jsonSweep{Name: sw.Name, From: sw.From, To: sw.To, BaseValue: sw.Base, Changes: []jsonChange{}}
+			for _, p := range sw.Points {
+				j.Points = append(j.Points, jsonPoint(c, p, true))
+			}
+			for _, ch := range sw.Changes {
+				j.Changes = append(j.Changes, jsonChange{Value: ch.At, From: ch.From, To: ch.To, Exact: ch.Exact})
+			}
+			js.Ranges = append(js.Ranges, j)
+		}
+		for _, l := range s.Spider {
+			j := jsonSpiderLine{Name: l.Name, Percent: l.Percent}
+			for _, p := range l.Points {
+				j.Points = append(j.Points, jsonPoint(c, p, false))
+			}
+			js.Spider = append(js.Spider, j)
+		}
+		out.Sensitivities = append(out.Sensitivities, js)
+	}
+	for _, s := range rep.Scenarios {
+		js := jsonScenario{ID: s.ID, Name: s.Name, Line: s.Line, Overrides: []jsonOverride{}, Comparisons: []jsonScenarioResult{}}
+		for _, v := range s.Values {
+			js.Overrides = append(js.Overrides, jsonOverride{Name: v.Name, Value: v.Value, BaseValue: finite(v.Base), Text: v.Text, Line: v.Line})
+		}
+		for _, r := range s.Comparisons {
+			jr := jsonScenarioResult{ID: r.Base.ID, Rate: r.Under.Rate.Effective, Recommended: r.Under.Recommended,
+				BaseRecommended: r.Base.Recommended, Changed: r.Changed(), Margin: r.Under.Margin}
+			for k, res := range r.Under.Results {
+				b := r.Base.Results[k]
+				jr.Results = append(jr.Results, jsonScenarioWorth{Alternative: res.Alt.ID, PresentWorth: res.PW, AnnualWorth: res.AW,
+					BasePresentWorth: b.PW, BaseAnnualWorth: b.AW})
+			}
+			js.Comparisons = append(js.Comparisons, jr)
+		}
+		out.Scenarios = append(out.Scenarios, js)
+	}
+	for _, bu := range rep.Budgets {
+		jb := jsonBudget{ID: bu.ID, Limit: bu.Limit, Feasible: bu.Feasible, Chosen: append([]string{}, bu.Chosen...),
+			TotalFirstCost: bu.TotalFirstCost, TotalPresentWorth: bu.TotalPW, LeftOut: []string{}}
+		for _, p := range bu.Projects {
+			jp := jsonBudgetProject{Compare: p.Comparison.ID, Required: p.Required}
+			if ch := p.Chosen(); ch != nil {
+				jp.Chosen = strOrNil(ch.ID)
+			} else {
+				jb.LeftOut = append(jb.LeftOut, p.Comparison.ID)
+			}
+			for _, o := range p.Options {
+				jp.Options = append(jp.Options, jsonBudgetOption{Alternative: o.ID, FirstCost: o.FirstCost, PresentWorth: o.PW})
+			}
+			jb.Projects = append(jb.Projects, jp)
+		}
+		step := func(s compute.BudgetStep) jsonBudgetStep {
+			return jsonBudgetStep{Limit: s.Limit, Feasible: s.Feasible, Chosen: append([]string{}, s.Chosen...),
+				TotalFirstCost: s.TotalFirstCost, TotalPresentWorth: s.TotalPW}
+		}
+		for _, s := range bu.Growth {
+			jb.Growth = append(jb.Growth, step(s))
+		}
+		if bu.Next != nil {
+			n := step(*bu.Next)
+			jb.Next = &n
+		}
+		out.Budgets = append(out.Budgets, jb)
+	}
+	return out
+}
