@@ -26,6 +26,9 @@ type Report struct {
 	Inline map[int]Value
 	// Places holds what each schedule or diagram block shows.
 	Places map[*parse.Place]*Placement
+	// Revision, when set (by "worth build --changes-since REV"), is what
+	// changed since an earlier version; the writers add it as a section.
+	Revision *Revision
 	// The analysis blocks, in memo order (sensitivity.go, scenario.go,
 	// budget.go).
 	Sensitivities []*Sensitivity

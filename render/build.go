@@ -82,6 +82,10 @@ func BuildDoc(rep *compute.Report, opt DocOptions) *Doc {
 	if b.top == 0 || b.top > 5 {
 		b.top = 1
 	}
+	if rep.Revision != nil && !opt.AppendixOnly {
+		// "worth build --changes-since REV": what changed, first.
+		doc.Body = append(revisionNodes(rep.Revision, b.f, b.top, b.slug), doc.Body...)
+	}
 	doc.Appendix = b.appendix()
 	return doc
 }

@@ -20,6 +20,7 @@ type jsonReport struct {
 	Comparisons  []jsonComparison  `json:"comparisons"`
 	Expectations []jsonExpectation `json:"expectations"`
 	jsonAnalysis
+	Revision *jsonRevision `json:"revision,omitempty"`
 }
 
 type jsonRate struct {
@@ -166,6 +167,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 		out.Expectations = append(out.Expectations, jsonExpectation{Line: x.Line, Text: x.Text, Passed: x.Passed, Detail: x.Detail})
 	}
 	out.jsonAnalysis = analysisJSON(rep)
+	out.Revision = revisionJSON(rep.Revision)
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetIndent("", "  ")

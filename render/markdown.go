@@ -20,6 +20,9 @@ func Markdown(rep *compute.Report) []byte {
 	m := rep.Memo
 	var b bytes.Buffer
 	heading(&b, m)
+	if rep.Revision != nil {
+		b.WriteString(mdRevision(rep.Revision, f, 2))
+	}
 	// Replacements of source ranges: blocks (by lines) and inline values
 	// (by bytes), applied in order.
 	type repl struct {

@@ -23,11 +23,13 @@ Usage:
   worth build [-o FILE] [--format FORMAT] [options] MEMO.md
   worth check MEMO.md...
   worth new [--kind NAME] FILE.md
+  worth diff [-o NOTE] OLD.md NEW.md
 
 Commands:
   build   compute the memo and write its report
   check   compute the memo(s) and run every expect block; write nothing
   new     write a starter memo that builds as is
+  diff    report what changed between two versions of a memo (either may be REV:PATH)
 
 Run "worth COMMAND --help" for a command's options.
 `
@@ -49,6 +51,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return check(args[1:], stdout, stderr)
 	case "new":
 		return newMemo(args[1:], stdout, stderr)
+	case "diff":
+		return diff(args[1:], stdout, stderr)
 	case "-h", "--help", "help":
 		fmt.Fprint(stdout, usage)
 		return 0
@@ -136,6 +140,7 @@ func build(args []string, stdout, stderr io.Writer) int {
 	fs.BoolVar(&opt.appendixOnly, "appendix-only", false, "write only the calculation appendix (HTML or PDF), to attach to a proposal")
 	var lo loadOptions
 	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let the memo read files (cash flows from: FILE.csv) outside its own folder")
+	since := fs.String("changes-since", "", "add a section on what changed since git revision `REV` of the memo (inputs and results, as worth diff)")
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] [options] MEMO.md\n\n"+
 			"Computes the memo and writes its report. Without -o, writes MEMO.html and\nMEMO.pdf beside the memo (with --format, MEMO.FORMAT; Markdown as MEMO.report.md).\nA memo with an error writes nothing and leaves earlier output untouched.\n\nOptions:\n")
@@ -199,6 +204,12 @@ func build(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		printErr(stderr, err)
 		return 2
+	}
+	if *since != "" {
+		if rep.Revision, err = changesSince(*since, memoPath, rep, lo); err != nil {
+			printErr(stderr, err)
+			return 2
+		}
 	}
 	for _, t := range targets {
 		if readsFile(rep.Memo, t.path) {
