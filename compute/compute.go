@@ -12,7 +12,13 @@ import (
 // Compute evaluates a parsed memo. It returns the report and, when anything
 // is wrong, a parse.ErrorList with every error found.
 func Compute(memo *parse.Memo) (*Report, error) {
-	return compute(memo, nil)
+	return compute(memo, nil, Options{})
+}
+
+// ComputeWith is Compute with options (a progress callback for risk
+// analyses); the results are the same.
+func ComputeWith(memo *parse.Memo, opt Options) (*Report, error) {
+	return compute(memo, nil, opt)
 }
 
 // Overrides replace named assumptions' values, and optionally the interest
@@ -32,10 +38,10 @@ type Overrides struct {
 // swing needs; it returns an error when the overrides make the memo
 // invalid (e.g. a rate at which a perpetual sum diverges).
 func Recompute(memo *parse.Memo, ov Overrides) (*Report, error) {
-	return compute(memo, &ov)
+	return compute(memo, &ov, Options{})
 }
 
-func compute(memo *parse.Memo, ov *Overrides) (*Report, error) {
+func compute(memo *parse.Memo, ov *Overrides, opt Options) (*Report, error) {
 	var errs parse.ErrorList
 	e := newEnv(memo.File, &errs)
 	e.overrides = ov
@@ -109,6 +115,9 @@ func compute(memo *parse.Memo, ov *Overrides) (*Report, error) {
 	}
 	if ov == nil {
 		e.analyses(memo, rep, compByID)
+	}
+	if ov == nil {
+		rep.Risks = e.risks(memo, rep, compByID, opt)
 	}
 	if len(errs) > 0 {
 		return rep, errs.Err()

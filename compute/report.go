@@ -34,6 +34,8 @@ type Report struct {
 	Sensitivities []*Sensitivity
 	Scenarios     []*Scenario
 	Budgets       []*Budget
+	// Risks holds the evaluated risk blocks, in source order (risk.go).
+	Risks []*Risk
 }
 
 // Currency is an ISO 4217 code with its symbol and minor-unit decimals.

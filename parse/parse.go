@@ -25,7 +25,7 @@ var kindsWithID = map[string]bool{
 }
 
 // notYet are block kinds of the contract this version does not read yet.
-var notYet = map[string]bool{"risk": true, "replacement": true}
+var notYet = map[string]bool{"replacement": true}
 
 // ReservedIDs may not be used as alternative ids.
 var ReservedIDs = map[string]bool{"do-nothing": true}
@@ -426,6 +426,8 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 		b = p.scenario(head, lines)
 	case "budget":
 		b = p.budget(head, lines)
+	case "risk":
+		b = p.risk(head, lines)
 	}
 	if b != nil {
 		p.memo.Blocks = append(p.memo.Blocks, b)

@@ -425,6 +425,8 @@ func (b *builder) worthBlock(blk parse.Block) []Node {
 		}
 	case *parse.Expect:
 		return b.expect(x)
+	case *parse.Risk:
+		return b.risk(x)
 	case *parse.Sensitivity, *parse.Scenario, *parse.Budget:
 		return b.analysis(x)
 	case *parse.Place:

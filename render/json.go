@@ -20,6 +20,7 @@ type jsonReport struct {
 	Comparisons  []jsonComparison  `json:"comparisons"`
 	Expectations []jsonExpectation `json:"expectations"`
 	jsonAnalysis
+	jsonRisks
 	Revision *jsonRevision `json:"revision,omitempty"`
 }
 
@@ -167,6 +168,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 		out.Expectations = append(out.Expectations, jsonExpectation{Line: x.Line, Text: x.Text, Passed: x.Passed, Detail: x.Detail})
 	}
 	out.jsonAnalysis = analysisJSON(rep)
+	out.jsonRisks = risksJSON(rep)
 	out.Revision = revisionJSON(rep.Revision)
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)

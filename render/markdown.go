@@ -240,6 +240,8 @@ func mdBlock(rep *compute.Report, f Format, blk parse.Block) string {
 		}
 	case *parse.Sensitivity, *parse.Scenario, *parse.Budget:
 		b.WriteString(mdAnalysis(rep, f, x))
+	case *parse.Risk:
+		b.WriteString(mdRisk(rep, f, x))
 	case *parse.Place:
 		p := rep.Places[x]
 		if p == nil {
