@@ -24,12 +24,14 @@ Usage:
   worth check MEMO.md...
   worth new [--kind NAME] FILE.md
   worth diff [-o NOTE] OLD.md NEW.md
+  worth watch [--port N] MEMO.md
 
 Commands:
   build   compute the memo and write its report
   check   compute the memo(s) and run every expect block; write nothing
   new     write a starter memo that builds as is
   diff    report what changed between two versions of a memo (either may be REV:PATH)
+  watch   rebuild on every save and serve a live preview on 127.0.0.1
 
 Run "worth COMMAND --help" for a command's options.
 `
@@ -53,6 +55,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return newMemo(args[1:], stdout, stderr)
 	case "diff":
 		return diff(args[1:], stdout, stderr)
+	case "watch":
+		return watch(args[1:], stdout, stderr)
 	case "-h", "--help", "help":
 		fmt.Fprint(stdout, usage)
 		return 0
