@@ -151,7 +151,8 @@ func loadSource(name string, src []byte, opt loadOptions, open func(string) ([]b
 	// Compute even when parsing found errors, so that every error of the
 	// memo is reported at once.
 	memo, perr := parse.ParseWith(name, src, parse.Options{Resolve: files.resolve})
-	rep, cerr := compute.Compute(memo)
+	// A long risk analysis draws a progress bar on a terminal.
+	rep, cerr := compute.ComputeWith(memo, compute.Options{Progress: progressBar(os.Stderr)})
 	l := &loaded{memo: memo, rep: rep, files: files.read}
 	var all parse.ErrorList
 	for _, err := range []error{perr, cerr} {
