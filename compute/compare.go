@@ -86,13 +86,13 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 		e.errs.Add(src.Pos, "compare %s has no interest rate; give \"rate: 7%%\" in the front matter or in the block", src.ID)
 		ok = false
 	}
+	c.Rate = e.moneyRate(c.Rate)
 	if src.DecideBy.Value.Src != "" {
 		c.DecideBy = src.DecideBy.Value.Src
 	}
 	if src.Basis.Value.Src != "" {
 		c.Basis = src.Basis.Value.Src
-		if c.Basis == "after tax" {
-			e.errs.Add(src.Basis.Value.Pos, "after-tax comparisons are part of the memo language but this version of worth computes before tax only")
+		if c.Basis == "after tax" && !e.afterTaxReady(src) {
 			ok = false
 		}
 	}
@@ -136,7 +136,7 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 	}
 	c.Show = showList(src, members, hz, c.Base != "")
 	for _, a := range members {
-		c.Results = append(c.Results, evaluate(a, i, hz))
+		c.Results = append(c.Results, e.evaluateOn(c, a, i, hz))
 	}
 	c.CostOnly = true
 	for _, a := range members {

@@ -72,13 +72,14 @@ func compute(memo *parse.Memo, ov *Overrides, opt Options) (*Report, error) {
 			rep.TaxRate = r
 		}
 	}
+	e.readTaxSettings(memo, rep)
 	// Alternatives.
 	byID := map[string]*Alternative{}
 	failed := map[string]bool{}
 	for _, b := range memo.Blocks {
 		if src, ok := b.(*parse.Alternative); ok && src.ID != "" {
 			a := e.alternative(src)
-			if a == nil {
+			if a == nil || !e.taxLines(a, src) {
 				failed[src.ID] = true
 				continue
 			}
@@ -102,6 +103,14 @@ func compute(memo *parse.Memo, ov *Overrides, opt Options) (*Report, error) {
 				rep.Comparisons = append(rep.Comparisons, c)
 			} else {
 				compByID[src.ID] = nil
+			}
+		}
+	}
+	// Replacement decisions (replacement.go).
+	for _, b := range memo.Blocks {
+		if src, ok := b.(*parse.Replacement); ok && src.ID != "" {
+			if r := e.replacement(src, byID, failed, rep.Rate); r != nil {
+				rep.Replacements = append(rep.Replacements, r)
 			}
 		}
 	}
@@ -178,7 +187,7 @@ func placement(errs *parse.ErrorList, pl *parse.Place, byID map[string]*Alternat
 	} else {
 		for _, c := range rep.Comparisons {
 			for _, r := range c.Results {
-				if r.Alt == a && p.Comp == nil {
+				if r.Alt.ID == a.ID && p.Comp == nil {
 					p.Comp = c
 				}
 			}
@@ -189,7 +198,7 @@ func placement(errs *parse.ErrorList, pl *parse.Place, byID map[string]*Alternat
 		}
 	}
 	for _, r := range p.Comp.Results {
-		if r.Alt == a {
+		if r.Alt.ID == a.ID {
 			p.Result = r
 		}
 	}

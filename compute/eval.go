@@ -28,6 +28,9 @@ type env struct {
 	frontRateFailed bool
 	// overrides, when set, fix assumptions' values and the rate (Recompute).
 	overrides *Overrides
+	// tax holds the memo's tax rate, inflation and money basis
+	// (aftertax.go).
+	tax *taxSettings
 	// na is the measure that did not apply in the evaluation under way
 	// (see notApplicableIn).
 	na *notApplicable

@@ -26,6 +26,12 @@ type Report struct {
 	Inline map[int]Value
 	// Places holds what each schedule or diagram block shows.
 	Places map[*parse.Place]*Placement
+	// Amounts is the money the memo's amounts are in: "then-current" or
+	// "constant" (aftertax.go).
+	Amounts string
+	// Replacements are the replacement blocks, in memo order
+	// (replacement.go).
+	Replacements []*Replacement
 	// Revision, when set (by "worth build --changes-since REV"), is what
 	// changed since an earlier version; the writers add it as a section.
 	Revision *Revision
@@ -86,6 +92,10 @@ type Alternative struct {
 	ResidualLine int
 	HasBenefits  bool // any benefit line (salvage excluded)
 	FirstCost    float64
+	// Depreciation and Loan are the alternative's "depreciation:" and
+	// "loan:" lines, nil when not given (depreciation.go, loan.go).
+	Depreciation *DepreciationPlan
+	Loan         *Loan
 	Source       *parse.Alternative
 }
 
@@ -200,6 +210,9 @@ type Result struct {
 	// Work is the worked solution: equations in factor notation.
 	Work     []*Equation
 	Warnings []string
+	// AfterTax is the after-tax cash-flow table of an after-tax
+	// comparison, nil before tax (aftertax.go).
+	AfterTax *AfterTax
 }
 
 // YearFlow is the cash flow of one year, split by category. Amounts are

@@ -23,7 +23,7 @@ var (
 var alternativeForms = []string{
 	"name", "life", "first cost", "cost at year N", "benefit at year N", "annual cost", "annual benefit",
 	"annual cost from year A to year B", "cost every K years", "benefit every K years", "salvage", "residual",
-	"disbenefit at year N", "annual disbenefit", "depreciation", "cash flows from",
+	"disbenefit at year N", "annual disbenefit", "depreciation", "loan", "cash flows from",
 }
 
 var signOf = map[string]Sign{"cost": Cost, "benefit": Benefit, "disbenefit": Disbenefit}
@@ -86,6 +86,11 @@ func (p *parser) alternative(h BlockHead, lines []srcLine) Block {
 		case key == "depreciation":
 			if once("depreciation", l.pos) {
 				a.Depreciation = p.depreciation(val)
+			}
+			continue
+		case key == "loan":
+			if once("loan", l.pos) {
+				a.Loan = p.loan(val)
 			}
 			continue
 		case key == "cash flows from":
@@ -190,9 +195,9 @@ func (p *parser) gradients(fl *FlowLine, val Text) {
 
 var (
 	reStraight  = regexp.MustCompile(`^straight line\s+(\S+)(?:\s+to\s+(.+))?$`)
-	reDeclining = regexp.MustCompile(`^declining balance\s+(\S+)\s+(\S+)$`)
-	reSYD       = regexp.MustCompile(`^sum of years(?: digits)?\s+(\S+)$`)
-	reMACRS     = regexp.MustCompile(`^macrs\s+(\S+)$`)
+	reDeclining = regexp.MustCompile(`^declining balance\s+(\S+)\s+(\S+)(?:\s+to\s+(.+))?$`)
+	reSYD       = regexp.MustCompile(`^sum of years(?:'? digits)?\s+(\S+)(?:\s+to\s+(.+))?$`)
+	reMACRS     = regexp.MustCompile(`^macrs\s+(?:gds\s+)?(\S+?)(?:\s*-?\s*years?)?$`)
 )
 
 func (p *parser) depreciation(val Text) *Depreciation {
@@ -208,13 +213,13 @@ func (p *parser) depreciation(val Text) *Depreciation {
 	if m := reStraight.FindStringSubmatchIndex(s); m != nil {
 		d.Method, d.Years, d.To = "straight line", *at(m, 1), at(m, 2)
 	} else if m := reDeclining.FindStringSubmatchIndex(s); m != nil {
-		d.Method, d.Rate, d.Years = "declining balance", at(m, 1), *at(m, 2)
+		d.Method, d.Rate, d.Years, d.To = "declining balance", at(m, 1), *at(m, 2), at(m, 3)
 	} else if m := reSYD.FindStringSubmatchIndex(s); m != nil {
-		d.Method, d.Years = "sum of years", *at(m, 1)
+		d.Method, d.Years, d.To = "sum of years", *at(m, 1), at(m, 2)
 	} else if m := reMACRS.FindStringSubmatchIndex(s); m != nil {
 		d.Method, d.Years = "macrs", *at(m, 1)
 	} else {
-		p.errorf(val.Pos, "cannot read depreciation %q; expected \"straight line N [to S]\", \"declining balance R%% N\", \"sum of years N\" or \"macrs N\"", val.Src)
+		p.errorf(val.Pos, "cannot read depreciation %q; expected \"straight line N [to S]\", \"declining balance R%% N [to S]\", \"sum of years N [to S]\" or \"macrs N\"", val.Src)
 		return nil
 	}
 	return d

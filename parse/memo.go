@@ -51,6 +51,9 @@ type FrontMatter struct {
 	Currency                       Field
 	Rate, TaxRate, Inflation       *RateSpec
 	Paper, Logo                    Field
+	// Amounts says which money the amounts are in: "then-current" (the
+	// default) or "constant" (see tax.go).
+	Amounts Field
 	// Extra holds further keys (e.g. "project", "prepared by"), shown in the
 	// memo heading in the order written.
 	Extra []Field
@@ -168,7 +171,7 @@ type Depreciation struct {
 	Method string // "straight line", "declining balance", "sum of years", "macrs"
 	Rate   *Text  // declining balance rate
 	Years  Text
-	To     *Text // straight line salvage
+	To     *Text // the salvage value to depreciate to ("to S"), nil for zero
 }
 
 // Alternative is an `alternative ID` block.
@@ -179,6 +182,7 @@ type Alternative struct {
 	Lines        []*FlowLine
 	Residual     *Text
 	Depreciation *Depreciation
+	Loan         *Loan // a "loan:" line (tax.go)
 }
 
 // DisplayName is the name, or the id where none is given.

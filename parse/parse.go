@@ -25,7 +25,7 @@ var kindsWithID = map[string]bool{
 }
 
 // notYet are block kinds of the contract this version does not read yet.
-var notYet = map[string]bool{"replacement": true}
+var notYet = map[string]bool{}
 
 // ReservedIDs may not be used as alternative ids.
 var ReservedIDs = map[string]bool{"do-nothing": true}
@@ -122,7 +122,7 @@ func (p *parser) frontMatter(src []byte) []byte {
 	return body
 }
 
-var frontKeys = []string{"title", "to", "from", "date", "subject", "currency", "rate", "tax rate", "inflation", "paper", "logo"}
+var frontKeys = []string{"title", "to", "from", "date", "subject", "currency", "rate", "tax rate", "inflation", "paper", "logo", "amounts"}
 
 func (p *parser) readYAML(y []byte, lineOffset int) {
 	var doc yaml.Node
@@ -198,6 +198,8 @@ func (p *parser) readYAML(y []byte, lineOffset int) {
 			fm.TaxRate = p.rateSpec(f.Value)
 		case "inflation":
 			fm.Inflation = p.rateSpec(f.Value)
+		case "amounts":
+			fm.Amounts = p.amounts(f)
 		default:
 			if s := expr.Closest(key, frontKeys); s != "" && len(key) >= 3 {
 				p.errorf(keyPos, "unknown front matter key %q; did you mean %q?", key, s)
@@ -420,6 +422,8 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 		b = p.expect(head, lines)
 	case "schedule", "diagram":
 		b = p.place(head, lines)
+	case "replacement":
+		b = p.replacement(head, lines)
 	case "sensitivity":
 		b = p.sensitivity(head, lines)
 	case "scenario":
