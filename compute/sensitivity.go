@@ -372,15 +372,17 @@ func (e *env) sensitivity(memo *parse.Memo, src *parse.Sensitivity, rep *Report,
 		in, g := e.resolveInput(rg.Name, "range", rep, c)
 		from, g1 := e.number(rg.From, "the range's first value")
 		to, g2 := e.number(rg.To, "the range's last value")
-		if !(g && g1 && g2) {
+		if !(g1 && g2) {
 			continue
 		}
 		switch {
 		case from >= to:
-			e.errs.Add(rg.From.Pos, "range %s: the first value (%s) must be below the last (%s)", rg.Name.ID, trimFloat(from), trimFloat(to))
+			e.errs.Add(rg.From.Pos, "range %s: the first value (%s) must be below the last (%s)", rg.Name.ID, rg.From.Src, rg.To.Src)
 			continue
-		case in.rate && from <= -1:
+		case rg.Name.ID == "rate" && from <= -1:
 			e.errs.Add(rg.From.Pos, "range rate: a rate must be above -100%%, got %s", pct100(from))
+			continue
+		case !g:
 			continue
 		}
 		ranges = append(ranges, rangePlan{in, from, to})

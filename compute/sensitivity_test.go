@@ -260,3 +260,50 @@ func TestSensitivityEvaluationsExample(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkSensitivityExample: the example memo's analysis blocks (a
+// sensitivity block with four swings, a sweep and three breakevens, two
+// scenarios and a budget), against the same memo without them, and one
+// recomputation. Target (issue "Analysis"): a sensitivity block on an
+// example under about 50 ms.
+//
+//	go test ./compute -run XXX -bench Sensitivity -benchtime 20x
+func BenchmarkSensitivityExample(b *testing.B) {
+	src, err := os.ReadFile("../examples/capital-program.md")
+	if err != nil {
+		b.Skip("no example")
+	}
+	full, err := parse.Parse("capital-program.md", src)
+	if err != nil {
+		b.Fatal(err)
+	}
+	cut := string(src)
+	cut = cut[:strings.Index(cut, "```sensitivity")] + cut[strings.Index(cut, "## Two other futures"):]
+	noSens, err := parse.Parse("capital-program.md", []byte(cut))
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("memo", func(b *testing.B) {
+		for i := 0; i < b.N; i++ {
+			if _, err := compute.Compute(full); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("memo-without-sensitivity", func(b *testing.B) {
+		for i := 0; i < b.N; i++ {
+			if _, err := compute.Compute(noSens); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("recompute", func(b *testing.B) {
+		for i := 0; i < b.N; i++ {
+			if _, err := compute.Recompute(full, compute.Overrides{}); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	rep, _ := compute.Compute(full)
+	b.Logf("sensitivity block: %d recomputations", rep.Sensitivities[0].Evaluations)
+}

@@ -70,7 +70,8 @@ func findBudget(rep *compute.Report, src *parse.Budget) *compute.Budget {
 }
 
 // analysisParts lays out one analysis block.
-func analysisParts(rep *compute.Report, f Format, blk parse.Block) []aPart {
+func analysisParts(rep *compute.Report, ff Format, blk parse.Block) []aPart {
+	f := newAFmt(rep, ff)
 	switch x := blk.(type) {
 	case *parse.Sensitivity:
 		if s := findSensitivity(rep, x); s != nil {
@@ -92,10 +93,30 @@ func analysisParts(rep *compute.Report, f Format, blk parse.Block) []aPart {
 	return nil
 }
 
-// inputValue formats a value of an input: a rate as a percentage, an
-// assumption as a number.
-func inputValue(f Format, rate bool, x float64) string {
-	if rate {
+// aFmt is the format of a report's analysis blocks: its Format, and the
+// assumptions written as percentages ("power_escal = 2%"), whose values
+// are shown as percentages too.
+type aFmt struct {
+	Format
+	pct map[string]bool
+}
+
+func newAFmt(rep *compute.Report, f Format) aFmt {
+	a := aFmt{Format: f, pct: map[string]bool{}}
+	for _, x := range rep.Assumptions {
+		if strings.HasSuffix(strings.TrimSpace(x.Expr), "%") {
+			a.pct[x.Name] = true
+		}
+	}
+	return a
+}
+
+func (b *builder) af() aFmt { return newAFmt(b.rep, b.f) }
+
+// input formats a value of an input: the rate, or an assumption written as
+// a percentage, as a percentage; another assumption as a number.
+func (f aFmt) input(name string, rate bool, x float64) string {
+	if rate || f.pct[name] {
 		return f.Rate(x)
 	}
 	return f.Num(x)
@@ -157,7 +178,7 @@ func marginText(f Format, p compute.WhatIf) string {
 	return f.Money(p.Margin)
 }
 
-func sensitivityParts(f Format, s *compute.Sensitivity) []aPart {
+func sensitivityParts(f aFmt, s *compute.Sensitivity) []aPart {
 	c := s.Compare
 	var parts []aPart
 	rec, rival := name(c, s.Recommended), name(c, s.RunnerUp)
@@ -177,13 +198,13 @@ func sensitivityParts(f Format, s *compute.Sensitivity) []aPart {
 			Note:    fmt.Sprintf("Margin: %s of %s less that of the best other choice; base %s. Each input is moved alone.", measure, rec, f.Money(s.Margin)),
 		}
 		for _, sw := range s.Swings {
-			lo, hi := inputValue(f, sw.Rate, sw.Low.Value), inputValue(f, sw.Rate, sw.High.Value)
+			lo, hi := f.input(sw.Name, sw.Rate, sw.Low.Value), f.input(sw.Name, sw.Rate, sw.High.Value)
 			if sw.Percent > 0 {
-				lo += " (" + change(f, sw.Base, sw.Low.Value) + ")"
-				hi += " (" + change(f, sw.Base, sw.High.Value) + ")"
+				lo += " (" + change(f.Format, sw.Base, sw.Low.Value) + ")"
+				hi += " (" + change(f.Format, sw.Base, sw.High.Value) + ")"
 			}
-			t.Rows = append(t.Rows, []string{inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, sw.Base), lo, hi,
-				marginText(f, sw.Low), marginText(f, sw.High), swingVerdict(c, s.Recommended, sw)})
+			t.Rows = append(t.Rows, []string{inputName(sw.Name, sw.Rate), f.input(sw.Name, sw.Rate, sw.Base), lo, hi,
+				marginText(f.Format, sw.Low), marginText(f.Format, sw.High), swingVerdict(c, s.Recommended, sw)})
 		}
 		parts = append(parts, aPart{Table: t})
 		parts = append(parts, aPart{Chart: func(b *builder) (Chart, bool) { return b.tornadoChart(s) }, Text: textTornado(f, s)})
@@ -191,7 +212,7 @@ func sensitivityParts(f Format, s *compute.Sensitivity) []aPart {
 		for _, sw := range s.Swings {
 			for _, p := range []compute.WhatIf{sw.Low, sw.High} {
 				if !p.Valid() {
-					invalid = append(invalid, fmt.Sprintf("At %s = %s the memo cannot be computed: %s", inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, p.Value), p.Invalid))
+					invalid = append(invalid, fmt.Sprintf("At %s = %s the memo cannot be computed: %s", inputName(sw.Name, sw.Rate), f.input(sw.Name, sw.Rate, p.Value), p.Invalid))
 				}
 			}
 		}
@@ -235,7 +256,7 @@ func swingVerdict(c *compute.Comparison, rec string, sw *compute.Swing) string {
 // textTornado draws the tornado with characters for the Markdown writer:
 // one bar per input from its lower to its higher margin, on a common
 // scale, with the base margin and zero marked.
-func textTornado(f Format, s *compute.Sensitivity) string {
+func textTornado(f aFmt, s *compute.Sensitivity) string {
 	const width = 40
 	lo, hi := math.Min(0, s.Margin), math.Max(0, s.Margin)
 	for _, sw := range s.Swings {
@@ -278,47 +299,60 @@ func textTornado(f Format, s *compute.Sensitivity) string {
 
 // spiderTable is the spider chart as a table: the margin at each
 // percentage change of each input.
-func spiderTable(f Format, s *compute.Sensitivity) *aTable {
+func spiderTable(f aFmt, s *compute.Sensitivity) *aTable {
 	line := s.Spider[0]
-	t := &aTable{
-		Caption: "Margin against the change in each input",
-		Header:  []string{"Input"},
-		Align:   []byte{'l'},
-	}
-	for _, p := range line.Percent {
-		t.Header = append(t.Header, signedPct(f, p))
-		t.Align = append(t.Align, 'r')
-	}
+	// Every other step of the chart's, so that the table stays narrow.
+	keep := func(k int) bool { return k%2 == 0 || len(line.Percent) <= 5 }
 	same := true
 	for _, l := range s.Spider {
-		if len(l.Percent) != len(line.Percent) {
-			same = false
-		}
-		for k := range l.Percent {
-			if same && l.Percent[k] != line.Percent[k] {
-				same = false
-			}
-		}
+		same = same && len(l.Percent) == len(line.Percent) && l.Percent[0] == line.Percent[0]
 	}
+	t := &aTable{Caption: "Margin against the change in each input", Header: []string{"Input"}, Align: []byte{'l'}}
 	if !same {
-		// Inputs swung by different percentages: columns by step.
-		t.Header = []string{"Input"}
-		for k := range line.Percent {
-			t.Header = append(t.Header, fmt.Sprintf("step %d", k+1))
+		// Inputs swung by different percentages: a column for the swing,
+		// and the steps named by their place in it.
+		t.Header = append(t.Header, "Swing")
+		t.Align = append(t.Align, 'r')
+	}
+	for k, p := range line.Percent {
+		if !keep(k) {
+			continue
 		}
+		h := signedPct(f.Format, p)
+		if !same {
+			h = spiderStep(p / line.Percent[len(line.Percent)-1])
+		}
+		t.Header = append(t.Header, h)
+		t.Align = append(t.Align, 'r')
 	}
 	for _, l := range s.Spider {
 		row := []string{inputName(l.Name, l.Rate)}
+		if !same {
+			row = append(row, "±"+signedPct(f.Format, l.Percent[len(l.Percent)-1])[1:])
+		}
 		for k, p := range l.Points {
-			cell := marginText(f, p)
-			if !same {
-				cell = signedPct(f, l.Percent[k]) + ": " + cell
+			if keep(k) {
+				row = append(row, marginText(f.Format, p))
 			}
-			row = append(row, cell)
 		}
 		t.Rows = append(t.Rows, row)
 	}
 	return t
+}
+
+// spiderStep names a step as a fraction of an input's swing.
+func spiderStep(frac float64) string {
+	switch {
+	case frac == 0:
+		return "Base"
+	case frac == -1:
+		return "Low end"
+	case frac == 1:
+		return "High end"
+	case frac < 0:
+		return fmt.Sprintf("%s down", strconv.FormatFloat(-frac*100, 'f', -1, 64)+"%")
+	}
+	return fmt.Sprintf("%s up", strconv.FormatFloat(frac*100, 'f', -1, 64)+"%")
 }
 
 func signedPct(f Format, p float64) string {
@@ -335,11 +369,11 @@ func signedPct(f Format, p float64) string {
 
 // sweepTable shows a range's sweep at a few of its values and at each
 // change of recommendation.
-func sweepTable(f Format, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
+func sweepTable(f aFmt, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
 	c := s.Compare
 	word := capital(sensMeasure(s))
 	t := &aTable{
-		Caption: fmt.Sprintf("%s across %s from %s to %s", word, inputName(sw.Name, sw.Rate), inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To)),
+		Caption: fmt.Sprintf("%s across %s from %s to %s", word, inputName(sw.Name, sw.Rate), f.input(sw.Name, sw.Rate, sw.From), f.input(sw.Name, sw.Rate, sw.To)),
 		Header:  []string{inputLabel(sw.Name, sw.Rate)},
 		Align:   []byte{'r'},
 	}
@@ -350,7 +384,7 @@ func sweepTable(f Format, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
 	t.Header = append(t.Header, "Recommended")
 	t.Align = append(t.Align, 'l')
 	// A few rows: the ends and the multiples of a round step.
-	step := compute.NiceStep((sw.To - sw.From) / 6)
+	step := compute.NiceStep((sw.To - sw.From) / 8)
 	shown := 0
 	for k, p := range sw.Points {
 		if q := p.Value / step; k != 0 && k != len(sw.Points)-1 &&
@@ -358,7 +392,7 @@ func sweepTable(f Format, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
 			continue
 		}
 		shown++
-		row := []string{inputValue(f, sw.Rate, p.Value)}
+		row := []string{f.input(sw.Name, sw.Rate, p.Value)}
 		for j := range c.Results {
 			if !p.Valid() {
 				row = append(row, "—")
@@ -373,17 +407,17 @@ func sweepTable(f Format, s *compute.Sensitivity, sw *compute.Sweep) *aTable {
 		}
 		t.Rows = append(t.Rows, row)
 	}
-	t.Note = fmt.Sprintf("Computed at %d values from %s to %s; %d shown here, all in the chart.", len(sw.Points), inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), shown)
+	t.Note = fmt.Sprintf("Computed at %d values from %s to %s; %d shown here, all in the chart.", len(sw.Points), f.input(sw.Name, sw.Rate, sw.From), f.input(sw.Name, sw.Rate, sw.To), shown)
 	return t
 }
 
 // sweepSentence says where a sweep changes the recommendation.
-func sweepSentence(f Format, s *compute.Sensitivity, sw *compute.Sweep) string {
+func sweepSentence(f aFmt, s *compute.Sensitivity, sw *compute.Sweep) string {
 	c := s.Compare
 	n := inputName(sw.Name, sw.Rate)
 	var parts []string
 	for _, ch := range sw.Changes {
-		at := inputValue(f, sw.Rate, ch.At)
+		at := f.input(sw.Name, sw.Rate, ch.At)
 		if !ch.Exact {
 			at = "about " + at
 		}
@@ -405,11 +439,11 @@ func sweepSentence(f Format, s *compute.Sensitivity, sw *compute.Sweep) string {
 			}
 		}
 		if first == "" {
-			return fmt.Sprintf("Across %s from %s to %s the memo cannot be computed.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To))
+			return fmt.Sprintf("Across %s from %s to %s the memo cannot be computed.", n, f.input(sw.Name, sw.Rate, sw.From), f.input(sw.Name, sw.Rate, sw.To))
 		}
-		out = fmt.Sprintf("Across %s from %s to %s the recommendation stays %s.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), name(c, first))
+		out = fmt.Sprintf("Across %s from %s to %s the recommendation stays %s.", n, f.input(sw.Name, sw.Rate, sw.From), f.input(sw.Name, sw.Rate, sw.To), name(c, first))
 	} else {
-		out = fmt.Sprintf("Across %s from %s to %s the recommendation changes %s.", n, inputValue(f, sw.Rate, sw.From), inputValue(f, sw.Rate, sw.To), strings.Join(parts, ", then "))
+		out = fmt.Sprintf("Across %s from %s to %s the recommendation changes %s.", n, f.input(sw.Name, sw.Rate, sw.From), f.input(sw.Name, sw.Rate, sw.To), strings.Join(parts, ", then "))
 	}
 	if invalid > 0 {
 		out += fmt.Sprintf(" At %d of the %d values the memo cannot be computed (the table says why); the chart leaves them out.", invalid, len(sw.Points))
@@ -418,10 +452,10 @@ func sweepSentence(f Format, s *compute.Sensitivity, sw *compute.Sweep) string {
 }
 
 // breakevenSentence states one breakeven, or that none was found.
-func breakevenSentence(f Format, s *compute.Sensitivity, be *compute.Breakeven) string {
+func breakevenSentence(f aFmt, s *compute.Sensitivity, be *compute.Breakeven) string {
 	c := s.Compare
 	n := inputLabel(be.Name, be.Rate)
-	base := inputValue(f, be.Rate, be.Base)
+	base := f.input(be.Name, be.Rate, be.Base)
 	switch {
 	case be.NoEffect:
 		return fmt.Sprintf("%s: does not affect comparison %s; there is no breakeven.", n, c.ID)
@@ -429,7 +463,7 @@ func breakevenSentence(f Format, s *compute.Sensitivity, be *compute.Breakeven) 
 		return fmt.Sprintf("%s: the alternatives are tied at the base value, %s, which is itself the breakeven.", n, base)
 	case be.Value == nil:
 		out := fmt.Sprintf("%s: no breakeven between %s and %s; %s stays recommended throughout (base %s).", n,
-			inputValue(f, be.Rate, be.SearchedLow), inputValue(f, be.Rate, be.SearchedHigh), name(c, s.Recommended), base)
+			f.input(be.Name, be.Rate, be.SearchedLow), f.input(be.Name, be.Rate, be.SearchedHigh), name(c, s.Recommended), base)
 		for _, l := range be.Limits {
 			out += " The search stopped " + l + "."
 		}
@@ -437,32 +471,32 @@ func breakevenSentence(f Format, s *compute.Sensitivity, be *compute.Breakeven) 
 	}
 	v := *be.Value
 	out := fmt.Sprintf("%s: the recommendation changes from %s to %s at %s (base %s, %s).", n, name(c, s.Recommended), name(c, be.To),
-		inputValue(f, be.Rate, v), base, change(f, be.Base, v))
+		f.input(be.Name, be.Rate, v), base, change(f.Format, be.Base, v))
 	if be.Verified {
 		out += fmt.Sprintf(" Substituted back, the margin there is %s and the recommendation differs just on either side.", f.Money(be.MarginAt))
 	} else {
 		out += " Substituted back, this value could not be confirmed (the margin jumps there), so treat it as approximate."
 	}
 	if be.Other != nil {
-		out += fmt.Sprintf(" On the other side of the base value it changes to %s at %s.", name(c, be.OtherTo), inputValue(f, be.Rate, *be.Other))
+		out += fmt.Sprintf(" On the other side of the base value it changes to %s at %s.", name(c, be.OtherTo), f.input(be.Name, be.Rate, *be.Other))
 	}
 	return out
 }
 
 // ---- scenarios ----
 
-func scenarioParts(f Format, s *compute.Scenario) []aPart {
+func scenarioParts(f aFmt, s *compute.Scenario) []aPart {
 	var parts []aPart
 	var vals []string
 	for _, v := range s.Values {
 		n := v.Name
-		val := inputValue(f, v.Rate, v.Value)
+		val := f.input(v.Name, v.Rate, v.Value)
 		text := n + " = " + val
 		if !v.Rate && strings.TrimSpace(v.Text) != val && strings.TrimSpace(v.Text) != f.Num(v.Value) && !plainNumber(v.Text) {
 			text = fmt.Sprintf("%s = %s = %s", n, v.Text, val)
 		}
 		if !math.IsNaN(v.Base) {
-			text += " (base " + inputValue(f, v.Rate, v.Base) + ")"
+			text += " (base " + f.input(v.Name, v.Rate, v.Base) + ")"
 		}
 		vals = append(vals, text)
 	}
@@ -471,9 +505,13 @@ func scenarioParts(f Format, s *compute.Scenario) []aPart {
 		title += ": " + s.Name
 	}
 	parts = append(parts, aPart{Para: title + ". " + strings.Join(vals, "; ") + ". Every other input keeps its base value, and every assumption that uses a changed one follows it."})
-	var changed []string
+	var changed, same []string
 	for _, r := range s.Comparisons {
 		c := r.Base
+		if unchanged(r) {
+			same = append(same, c.ID)
+			continue
+		}
 		word := capital(measureWord(c))
 		if c.Horizon.Perpetual() && word == "Present worth" {
 			word = "Capitalized worth"
@@ -486,7 +524,7 @@ func scenarioParts(f Format, s *compute.Scenario) []aPart {
 		for k, res := range c.Results {
 			u := r.Under.Results[k]
 			b, x := measureOf(c, res), measureOf(r.Under, u)
-			t.Rows = append(t.Rows, []string{res.Alt.Name, f.Money(b), f.Money(x), signedMoney(f, x-b)})
+			t.Rows = append(t.Rows, []string{res.Alt.Name, f.Money(b), f.Money(x), signedMoney(f.Format, x-b)})
 			t.Bold = append(t.Bold, false)
 		}
 		t.Rows = append(t.Rows, []string{"Recommended", name(c, c.Recommended), name(r.Under, r.Under.Recommended), ""})
@@ -497,12 +535,48 @@ func scenarioParts(f Format, s *compute.Scenario) []aPart {
 			changed = append(changed, fmt.Sprintf("comparison %s recommends %s instead of %s", c.ID, name(r.Under, r.Under.Recommended), name(c, c.Recommended)))
 		}
 	}
+	if len(same) > 0 {
+		verb := "does not use the changed inputs and is unchanged"
+		if len(same) > 1 {
+			verb = "do not use the changed inputs and are unchanged"
+		}
+		parts = append(parts, aPart{Para: fmt.Sprintf("%s %s %s.", plural(len(same), "Comparison", "Comparisons"), andList(same), verb)})
+	}
 	if len(changed) > 0 {
 		parts = append(parts, aPart{Callout: &Callout{Kind: "warning", Title: "The recommendation changes", Text: "Under scenario " + s.Name + ", " + strings.Join(changed, "; ") + "."}})
 	} else if len(s.Comparisons) > 0 {
 		parts = append(parts, aPart{Para: "Under this scenario no recommendation changes."})
 	}
 	return parts
+}
+
+// unchanged reports whether a scenario leaves a comparison exactly as it
+// is in the base case.
+func unchanged(r *compute.ScenarioResult) bool {
+	if r.Base.Rate.Effective != r.Under.Rate.Effective || r.Changed() {
+		return false
+	}
+	for k, res := range r.Base.Results {
+		if res.PW != r.Under.Results[k].PW || res.AW != r.Under.Results[k].AW {
+			return false
+		}
+	}
+	return true
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+// andList joins words as "a", "a and b", "a, b and c".
+func andList(xs []string) string {
+	if len(xs) <= 1 {
+		return strings.Join(xs, "")
+	}
+	return strings.Join(xs[:len(xs)-1], ", ") + " and " + xs[len(xs)-1]
 }
 
 // plainNumber reports whether text is a number as written, with no names.
@@ -531,7 +605,7 @@ func signedMoney(f Format, x float64) string {
 
 // scenarioSummary is the recommendation of every comparison in the base
 // case and under every scenario, shown after the last scenario block.
-func scenarioSummary(f Format, rep *compute.Report) aPart {
+func scenarioSummary(f aFmt, rep *compute.Report) aPart {
 	t := &aTable{Caption: "Recommendations under every scenario", Header: []string{"Comparison", "Base case"}, Align: []byte{'l', 'l'}}
 	for _, s := range rep.Scenarios {
 		t.Header = append(t.Header, s.Name)
@@ -558,7 +632,7 @@ func scenarioSummary(f Format, rep *compute.Report) aPart {
 
 // ---- budgets ----
 
-func budgetParts(f Format, bu *compute.Budget) []aPart {
+func budgetParts(f aFmt, bu *compute.Budget) []aPart {
 	var parts []aPart
 	intro := fmt.Sprintf("Budget %s: at most one alternative from each of %d projects, or none, chosen to give the greatest total present worth with total first cost within %s. The choice is exact: every undominated combination was weighed, not ranked one by one.", bu.ID, len(bu.Projects), f.Money(bu.Limit))
 	parts = append(parts, aPart{Para: intro})
@@ -567,7 +641,7 @@ func budgetParts(f Format, bu *compute.Budget) []aPart {
 	}
 	t := &aTable{
 		Caption: "Program within " + f.Money(bu.Limit),
-		Header:  []string{"Project", "Chosen", "First cost", "Present worth", "Alternatives"},
+		Header:  []string{"Project", "Alternative", "First cost", "Present worth", "In the program"},
 		Align:   []byte{'l', 'l', 'r', 'r', 'l'},
 	}
 	var left []string
@@ -577,23 +651,24 @@ func budgetParts(f Format, bu *compute.Budget) []aPart {
 		if p.Required {
 			proj += " (required)"
 		}
-		var opts []string
-		for _, o := range p.Options {
-			opts = append(opts, fmt.Sprintf("%s %s / %s", o.Name, f.Money(o.FirstCost), f.Money(o.PW)))
+		for k, o := range p.Options {
+			in := ""
+			if k == p.Choice {
+				in = "chosen"
+			}
+			t.Rows = append(t.Rows, []string{proj, o.Name, f.Money(o.FirstCost), f.Money(o.PW), in})
+			t.Bold = append(t.Bold, k == p.Choice)
+			proj = ""
 		}
-		if ch := p.Chosen(); ch != nil {
-			t.Rows = append(t.Rows, []string{proj, ch.Name, f.Money(ch.FirstCost), f.Money(ch.PW), strings.Join(opts, "; ")})
-		} else {
-			t.Rows = append(t.Rows, []string{proj, "none", "", "", strings.Join(opts, "; ")})
+		if p.Chosen() == nil {
 			left = append(left, leftOutReason(f, p, bu))
 		}
-		t.Bold = append(t.Bold, false)
 	}
 	if bu.Feasible {
-		t.Rows = append(t.Rows, []string{"Total", "", f.Money(bu.TotalFirstCost), f.Money(bu.TotalPW), fmt.Sprintf("%s of the limit unspent", f.Money(bu.Limit-bu.TotalFirstCost))})
+		t.Rows = append(t.Rows, []string{"Total", "", f.Money(bu.TotalFirstCost), f.Money(bu.TotalPW), f.Money(bu.Limit-bu.TotalFirstCost) + " of the limit unspent"})
 		t.Bold = append(t.Bold, true)
 	}
-	t.Note = "Alternatives: each one's first cost / present worth in its comparison. Present worths are taken at each comparison's own rate and horizon."
+	t.Note = "Each alternative's first cost, and its present worth in its own comparison (at that comparison's rate and horizon)."
 	parts = append(parts, aPart{Table: t})
 	if len(left) > 0 {
 		parts = append(parts, aPart{Para: "Left out:", Items: left})
@@ -613,11 +688,11 @@ func budgetParts(f Format, bu *compute.Budget) []aPart {
 		g.Rows = append(g.Rows, []string{lim, chosenNames(bu, s.Chosen), f.Money(s.TotalFirstCost), f.Money(s.TotalPW)})
 		g.Bold = append(g.Bold, math.Abs(s.Limit-bu.Limit) < 1e-9*bu.Limit)
 	}
-	parts = append(parts, aPart{Table: g, Chart: func(b *builder) (Chart, bool) { return b.budgetChart(bu) }})
+	parts = append(parts, aPart{Table: g})
 	if bu.Next != nil && bu.Feasible {
 		n := bu.Next
-		parts = append(parts, aPart{Para: fmt.Sprintf("The next step up: a limit of %s (%s more) buys %s, raising the total present worth by %s to %s.",
-			f.Money(n.TotalFirstCost), f.Money(n.TotalFirstCost-bu.Limit), chosenNames(bu, n.Chosen), f.Money(n.TotalPW-bu.TotalPW), f.Money(n.TotalPW))})
+		parts = append(parts, aPart{Para: fmt.Sprintf("The next step up: a limit of %s (%s more) would %s, raising the total present worth by %s to %s.",
+			f.Money(n.TotalFirstCost), f.Money(n.TotalFirstCost-bu.Limit), programChange(bu, n.Chosen), f.Money(n.TotalPW-bu.TotalPW), f.Money(n.TotalPW))})
 	} else if bu.Feasible {
 		parts = append(parts, aPart{Para: "No larger limit would add present worth: every project already contributes its best alternative, or none is worth its cost."})
 	}
@@ -625,7 +700,7 @@ func budgetParts(f Format, bu *compute.Budget) []aPart {
 }
 
 // leftOutReason says why a project contributes nothing.
-func leftOutReason(f Format, p *compute.BudgetProject, bu *compute.Budget) string {
+func leftOutReason(f aFmt, p *compute.BudgetProject, bu *compute.Budget) string {
 	c := p.Comparison
 	best := -1
 	for k, o := range p.Options {
@@ -643,6 +718,36 @@ func leftOutReason(f Format, p *compute.BudgetProject, bu *compute.Budget) strin
 	return fmt.Sprintf("%s: its best alternative, %s (%s, first cost %s), does not fit beside better uses of the limit.", c.ID, o.Name, f.Money(o.PW), f.Money(o.FirstCost))
 }
 
+// programChange says how a program with the given chosen alternatives
+// differs from the budget's chosen program, project by project.
+func programChange(bu *compute.Budget, ids []string) string {
+	in := map[string]bool{}
+	for _, id := range ids {
+		in[id] = true
+	}
+	var out []string
+	for _, p := range bu.Projects {
+		was, now := p.Chosen(), (*compute.BudgetOption)(nil)
+		for k := range p.Options {
+			if in[p.Options[k].ID] {
+				now = &p.Options[k]
+			}
+		}
+		switch {
+		case was == nil && now != nil:
+			out = append(out, fmt.Sprintf("add %s (%s)", now.Name, p.Comparison.ID))
+		case was != nil && now == nil:
+			out = append(out, fmt.Sprintf("drop %s (%s)", was.Name, p.Comparison.ID))
+		case was != nil && now != nil && was.ID != now.ID:
+			out = append(out, fmt.Sprintf("take %s instead of %s (%s)", now.Name, was.Name, p.Comparison.ID))
+		}
+	}
+	if len(out) == 0 {
+		return "keep the same program"
+	}
+	return andList(out)
+}
+
 // chosenNames lists chosen alternatives by name with their project.
 func chosenNames(bu *compute.Budget, ids []string) string {
 	if len(ids) == 0 {
@@ -658,7 +763,7 @@ func chosenNames(bu *compute.Budget, ids []string) string {
 			}
 		}
 	}
-	return strings.Join(out, ", ")
+	return strings.Join(out, "; ")
 }
 
 // ---- Markdown ----
@@ -750,11 +855,296 @@ func (b *builder) analysis(blk parse.Block) []Node {
 	return out
 }
 
-// tornadoChart is the tornado of a sensitivity block. Until the HTML and
-// PDF writers draw horizontal bars, it is given as a table only (see
-// sensitivityParts); the chart node is not emitted.
+// tornadoChart is the tornado of a sensitivity block: one bar per input,
+// widest swing at the top, from the base margin to the margin at the
+// input's low and at its high value.
 func (b *builder) tornadoChart(s *compute.Sensitivity) (Chart, bool) {
-	return Chart{}, false
+	rec := name(s.Compare, s.Recommended)
+	ch := Chart{
+		Kind:    "tornado",
+		Title:   fmt.Sprintf("Tornado: margin of %s as each input swings alone", rec),
+		XLabel:  fmt.Sprintf("Margin (%s) of %s over the best other choice", sensMeasure(s), rec),
+		XFormat: "money",
+	}
+	lo, hi := math.Min(0, s.Margin), math.Max(0, s.Margin)
+	var alt []string
+	for _, sw := range s.Swings {
+		bar := Bar{Label: inputName(sw.Name, sw.Rate), Base: s.Margin, Low: sw.Low.Margin, High: sw.High.Margin,
+			LowLabel: b.af().input(sw.Name, sw.Rate, sw.Low.Value), HighLabel: b.af().input(sw.Name, sw.Rate, sw.High.Value)}
+		for _, v := range []float64{bar.Low, bar.High} {
+			if !math.IsNaN(v) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+		}
+		ch.Bars = append(ch.Bars, bar)
+		alt = append(alt, fmt.Sprintf("%s %s at %s and %s at %s", bar.Label, marginText(b.f, sw.Low), bar.LowLabel, marginText(b.f, sw.High), bar.HighLabel))
+	}
+	if len(ch.Bars) == 0 {
+		return Chart{}, false
+	}
+	if hi <= lo {
+		hi = lo + 1
+	}
+	pad := (hi - lo) * 0.04
+	ch.XMin, ch.XMax, ch.XTicks = b.axis(lo-pad, hi+pad, 7, "money", false)
+	ch.Marks = append(ch.Marks, Mark{X: s.Margin, HasX: true, Label: "base " + b.f.Money(s.Margin), Series: -1, Kind: "rate"})
+	if s.Margin != 0 {
+		ch.Marks = append(ch.Marks, Mark{X: 0, HasX: true, Label: "zero: the decision changes", Series: -1, Kind: "crossover"})
+	}
+	ch.Alt = fmt.Sprintf("Tornado chart of the margin of %s over the best other choice, %s at the base values, as each input moves alone to its low and its high value, widest swing first: %s.", rec, b.f.Money(s.Margin), strings.Join(alt, "; "))
+	return ch, true
+}
+
+// tornadoLegend names the two halves of every bar.
+var tornadoLegend = [2]string{"input at its low value", "input at its high value"}
+
+// layoutTornado lays out a tornado chart for the HTML writer: a row per
+// bar, its category on the left, the two halves in the first two series
+// colours, the values of the input at the bar ends, and the base and zero
+// lines.
+func layoutTornado(c *Chart, id string) svgChart {
+	const W, rowH, barH = 720.0, 30.0, 15.0
+	labelW := 0.0
+	for _, b := range c.Bars {
+		labelW = math.Max(labelW, textWidth(b.Label, tickSize))
+	}
+	top := 34.0
+	H := top + rowH*float64(len(c.Bars)) + 44
+	out := svgChart{ID: id, Kind: "tornado", W: int(W), H: int(math.Ceil(H)), Title: c.Title, Desc: c.Alt, Notes: c.Notes}
+	f := frame{left: math.Max(80, labelW+18), top: top, right: W - 24, bottom: top + rowH*float64(len(c.Bars)),
+		xmin: c.XMin, xmax: c.XMax, ymin: 0, ymax: 1}
+	if f.xmax <= f.xmin {
+		f.xmax = f.xmin + 1
+	}
+	out.Groups = append(out.Groups, axes(c, f, H, false))
+	bars := svgGroup{Class: "series"}
+	labels := svgGroup{Class: "marks"}
+	p := &placer{bounds: labelBox{f.left - 4, f.top - 30, W, f.bottom}}
+	for k, b := range c.Bars {
+		yc := f.top + (float64(k)+0.5)*rowH
+		labels.Texts = append(labels.Texts, svgText{X: coord(f.left - 8), Y: coord(yc + 4), Anchor: "end", Class: "tick", Text: b.Label})
+		x0 := f.x(b.Base)
+		ends := []struct {
+			v     float64
+			label string
+			cls   string
+		}{{b.Low, b.LowLabel, seriesClass(0)}, {b.High, b.HighLabel, seriesClass(1)}}
+		// The longer half first, so that the shorter stays visible on it.
+		if math.Abs(b.High-b.Base) > math.Abs(b.Low-b.Base) {
+			ends[0], ends[1] = ends[1], ends[0]
+		}
+		for _, e := range ends {
+			if math.IsNaN(e.v) {
+				continue
+			}
+			x1 := f.x(e.v)
+			if math.Abs(x1-x0) < 1.5 {
+				x1 = x0 + 1.5
+			}
+			bars.Paths = append(bars.Paths, svgPath{"M" + coord(x0) + " " + coord(yc) + "H" + coord(x1), e.cls, coord(barH)})
+		}
+		for _, e := range ends {
+			// Beside the bar's end, else just inside it.
+			type try struct {
+				x      float64
+				anchor string
+			}
+			var tries []try
+			text := e.label
+			switch x := f.x(e.v); {
+			case math.IsNaN(e.v):
+				text = e.label + ": invalid"
+				tries = []try{{x0 + 4, "start"}, {x0 - 4, "end"}}
+			case e.v >= b.Base:
+				tries = []try{{x + 4, "start"}, {x - 4, "end"}}
+			default:
+				tries = []try{{x - 4, "end"}, {x + 4, "start"}}
+			}
+			for _, t := range tries {
+				if pos, ok := p.place(text, labelSize, t.anchor, [][2]float64{{t.x, yc + 4}}); ok {
+					labels.Texts = append(labels.Texts, svgText{X: coord(pos[0]), Y: coord(pos[1]), Anchor: t.anchor, Class: "mark-label", Text: text})
+					break
+				}
+			}
+		}
+	}
+	out.Groups = append(out.Groups, bars)
+	for _, m := range c.Marks {
+		if !m.HasX || m.X < f.xmin || m.X > f.xmax {
+			continue
+		}
+		x := f.x(m.X)
+		labels.Lines = append(labels.Lines, svgLine{coord(x), coord(f.top - 6), coord(x), coord(f.bottom), "refline"})
+		cands := [][2]float64{{x + 4, f.top - 10}, {x - 4, f.top - 10}, {x + 4, f.top - 22}, {x - 4, f.top - 22}}
+		for k, cand := range cands {
+			anchor := "start"
+			if k%2 == 1 {
+				anchor = "end"
+			}
+			if pos, ok := p.place(m.Label, labelSize, anchor, [][2]float64{cand}); ok {
+				labels.Texts = append(labels.Texts, svgText{X: coord(pos[0]), Y: coord(pos[1]), Anchor: anchor, Class: "mark-label", Text: m.Label})
+				break
+			}
+		}
+	}
+	out.Groups = append(out.Groups, labels)
+	out.Legend = []svgLegend{{tornadoLegend[0], seriesClass(0)}, {tornadoLegend[1], seriesClass(1)}}
+	return out
+}
+
+// tornadoHeight is the height a tornado chart's plot takes in the PDF.
+func tornadoHeight(c *Chart) float64 {
+	return 30 + 19*float64(len(c.Bars)) + 40
+}
+
+// tornadoPDF draws a tornado chart in area a of the PDF.
+func (w *pdfWriter) tornadoPDF(c *Chart, a pdfRect) {
+	n := float64(len(c.Bars))
+	if n == 0 {
+		return
+	}
+	labelW := 0.0
+	for _, b := range c.Bars {
+		labelW = math.Max(labelW, pdfStrWidth(pdfClean(b.Label, fRegular), fRegular, pdfChartTextSize))
+	}
+	plot := pdfRect{a.x + labelW + 10, a.y + 22, 0, 0}
+	plot.w = a.x + a.w - plot.x - 14
+	plot.h = a.h - 22 - 40
+	rowH := plot.h / n
+	barH := math.Min(10, rowH*0.55)
+	xlo, xhi := c.XMin, c.XMax
+	if xhi <= xlo {
+		xhi = xlo + 1
+	}
+	px := func(x float64) float64 { return plot.x + (x-xlo)/(xhi-xlo)*plot.w }
+	// Grid and ticks.
+	lastRight := math.Inf(-1)
+	for _, t := range c.XTicks {
+		if t.At < xlo-1e-9*(xhi-xlo) || t.At > xhi+1e-9*(xhi-xlo) {
+			continue
+		}
+		x := px(t.At)
+		w.setDraw(pdfColGrid, 0.4)
+		w.pdf.Line(x, plot.y, x, plot.y+plot.h)
+		s := pdfClean(t.Label, fRegular)
+		lw := pdfStrWidth(s, fRegular, pdfChartTextSize)
+		if x-lw/2 > lastRight+3 {
+			w.textCenter(x, plot.y+plot.h+4+pdfChartTextSize, s, fRegular, pdfChartTextSize, pdfColMuted)
+			lastRight = x + lw/2
+		}
+	}
+	w.setDraw(pdfColAxis, 0.6)
+	w.pdf.Line(plot.x, plot.y+plot.h, plot.x+plot.w, plot.y+plot.h)
+	w.pdf.Line(plot.x, plot.y, plot.x, plot.y+plot.h)
+	if c.XLabel != "" {
+		w.textCenter(plot.x+plot.w/2, plot.y+plot.h+16+pdfChartTextSize, pdfFit(c.XLabel, fItalic, pdfChartTextSize, plot.w), fItalic, pdfChartTextSize, pdfColMuted)
+	}
+	var taken []pdfRect
+	label := func(s string, x, y float64, right bool) bool {
+		s = pdfClean(s, fRegular)
+		lw := pdfStrWidth(s, fRegular, pdfChartTextSize)
+		r := pdfRect{x, y - pdfChartTextSize, lw, pdfChartTextSize + 2}
+		if !right {
+			r.x = x - lw
+		}
+		if r.x < plot.x || r.x+r.w > a.x+a.w {
+			return false
+		}
+		for _, t := range taken {
+			if r.overlaps(t) {
+				return false
+			}
+		}
+		taken = append(taken, r)
+		return true
+	}
+	type pending struct {
+		s     string
+		x, y  float64
+		white bool
+	}
+	var texts []pending
+	// place puts a label beside a bar's end, else just inside it (in white).
+	place := func(s string, x, y float64, right bool) {
+		if label(s, x, y, right) {
+			texts = append(texts, pending{s, taken[len(taken)-1].x, y, false})
+			return
+		}
+		dx := -6.0
+		if !right {
+			dx = 6
+		}
+		if label(s, x+dx, y, !right) {
+			texts = append(texts, pending{s, taken[len(taken)-1].x, y, true})
+		}
+	}
+	for k, b := range c.Bars {
+		yc := plot.y + (float64(k)+0.5)*rowH
+		w.textRight(plot.x-6, yc+pdfChartTextSize*0.35, b.Label, fRegular, pdfChartTextSize, pdfColText)
+		x0 := px(b.Base)
+		type end struct {
+			v     float64
+			label string
+			style int
+		}
+		ends := []end{{b.Low, b.LowLabel, 0}, {b.High, b.HighLabel, 1}}
+		if math.Abs(b.High-b.Base) > math.Abs(b.Low-b.Base) {
+			ends[0], ends[1] = ends[1], ends[0]
+		}
+		for _, e := range ends {
+			if math.IsNaN(e.v) {
+				continue
+			}
+			x1 := px(e.v)
+			if math.Abs(x1-x0) < 0.8 {
+				x1 = x0 + 0.8
+			}
+			w.setFill(pdfSeriesStyles[e.style].c)
+			w.pdf.Rect(math.Min(x0, x1), yc-barH/2, math.Abs(x1-x0), barH, "F")
+		}
+		for _, e := range ends {
+			switch {
+			case math.IsNaN(e.v):
+				place(e.label+": invalid", x0+3, yc+pdfChartTextSize*0.35, true)
+			case e.v >= b.Base:
+				place(e.label, px(e.v)+3, yc+pdfChartTextSize*0.35, true)
+			default:
+				place(e.label, px(e.v)-3, yc+pdfChartTextSize*0.35, false)
+			}
+		}
+	}
+	for _, t := range texts {
+		col := pdfColText
+		if t.white {
+			col = pdfRgb{255, 255, 255}
+		}
+		w.text(t.x, t.y, t.s, fRegular, pdfChartTextSize, col)
+	}
+	for _, m := range c.Marks {
+		if !m.HasX || m.X < xlo || m.X > xhi {
+			continue
+		}
+		x := px(m.X)
+		w.setDraw(pdfColMuted, 0.5)
+		w.pdf.SetDashPattern([]float64{2, 2}, 0)
+		w.pdf.Line(x, plot.y-4, x, plot.y+plot.h)
+		w.pdf.SetDashPattern(nil, 0)
+		for _, y := range []float64{plot.y - 7, plot.y - 16} {
+			if label(m.Label, x+3, y, true) || label(m.Label, x-3, y, false) {
+				w.text(taken[len(taken)-1].x, y, m.Label, fRegular, pdfChartTextSize, pdfColText)
+				break
+			}
+		}
+	}
+	// The legend.
+	ly := a.y + a.h - 8
+	x := plot.x
+	for k, name := range tornadoLegend {
+		w.setFill(pdfSeriesStyles[k].c)
+		w.pdf.Rect(x, ly-6, 14, 6, "F")
+		w.text(x+20, ly, name, fRegular, pdfChartTextSize, pdfColText)
+		x += 20 + pdfStrWidth(name, fRegular, pdfChartTextSize) + 16
+	}
 }
 
 // spiderChart is the margin against the percentage change of each input.
@@ -830,24 +1220,18 @@ func (b *builder) sweepChart(s *compute.Sensitivity, sw *compute.Sweep) (Chart, 
 		return Chart{}, false
 	}
 	if sw.Base >= sw.From && sw.Base <= sw.To {
-		ch.Marks = append(ch.Marks, Mark{X: sw.Base, HasX: true, Label: "base " + inputValue(b.f, sw.Rate, sw.Base), Series: -1, Kind: "rate"})
+		ch.Marks = append(ch.Marks, Mark{X: sw.Base, HasX: true, Label: "base " + b.af().input(sw.Name, sw.Rate, sw.Base), Series: -1, Kind: "rate"})
 	}
 	for _, x := range sw.Changes {
 		if math.IsNaN(x.Worth) {
 			continue
 		}
-		ch.Marks = append(ch.Marks, Mark{X: x.At, Y: x.Worth, HasX: true, HasY: true, Label: "changes at " + inputValue(b.f, sw.Rate, x.At), Series: -1, Kind: "crossover"})
+		ch.Marks = append(ch.Marks, Mark{X: x.At, Y: x.Worth, HasX: true, HasY: true, Label: "changes at " + b.af().input(sw.Name, sw.Rate, x.At), Series: -1, Kind: "crossover"})
 	}
 	ch.XMin, ch.XMax, ch.XTicks = b.axis(sw.From, sw.To, 8, xf, true)
 	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
-	ch.Alt = sweepSentence(b.f, s, sw)
+	ch.Alt = sweepSentence(b.af(), s, sw)
 	return ch, true
-}
-
-// budgetChart is the best total present worth against the limit, a step
-// for each program of the growth table.
-func (b *builder) budgetChart(bu *compute.Budget) (Chart, bool) {
-	return Chart{}, false
 }
 
 // ---- JSON ----

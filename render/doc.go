@@ -122,7 +122,7 @@ type Callout struct {
 
 // Chart is a chart described once and drawn by each writer.
 type Chart struct {
-	Kind   string // "cashflow" (arrow diagram), "lines" (x-y curves), "bars"
+	Kind   string // "cashflow" (arrow diagram), "lines" (x-y curves), "bars", "tornado"
 	Title  string
 	Alt    string // text alternative for readers who cannot see it
 	XLabel string
@@ -133,6 +133,8 @@ type Chart struct {
 	Series           []Series
 	// Arrows is the cash-flow diagram: one arrow per year.
 	Arrows []Arrow
+	// Bars are the rows of a tornado chart, top to bottom.
+	Bars []Bar
 	// Marks are labelled points (a rate of return, a crossover rate, a
 	// payback year) and vertical or horizontal reference lines.
 	Marks []Mark
@@ -170,6 +172,16 @@ type Arrow struct {
 	Year   int
 	Amount float64
 	Label  string
+}
+
+// Bar is one row of a tornado chart: a category (an input) and the chart's
+// value at the input's low and at its high end, each drawn as a bar along
+// the x axis from Base, the base case's value. Low or High is NaN where
+// the value is undefined; the labels name the input's value at each end.
+type Bar struct {
+	Label               string
+	Base, Low, High     float64
+	LowLabel, HighLabel string
 }
 
 // Mark is a labelled point or reference line on a chart. Vertical lines

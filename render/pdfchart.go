@@ -60,6 +60,9 @@ func chartShrink(c *Chart) float64 {
 	if c.Kind == "cashflow" {
 		return 50
 	}
+	if c.Kind == "tornado" {
+		return 0 // its rows are sized to fit their labels
+	}
 	return 40
 }
 
@@ -77,6 +80,8 @@ func (w *pdfWriter) chartHeightShrunk(c *Chart, shrink float64) float64 {
 	switch c.Kind {
 	case "cashflow":
 		h += 200 - shrink
+	case "tornado":
+		h += tornadoHeight(c) - shrink // analysis.go
 	default:
 		h += 210 - shrink + w.legendHeight(c)
 	}
@@ -126,6 +131,8 @@ func (w *pdfWriter) chart(c *Chart) {
 		w.cashflowChart(c, area)
 	case "bars":
 		w.xyChart(c, area, true)
+	case "tornado":
+		w.tornadoPDF(c, area) // analysis.go
 	default:
 		w.xyChart(c, area, false)
 	}

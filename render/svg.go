@@ -216,6 +216,9 @@ func layoutChart(c *Chart, id string) svgChart {
 	if c.Kind == "cashflow" {
 		return layoutCashflow(c, id)
 	}
+	if c.Kind == "tornado" {
+		return layoutTornado(c, id) // analysis.go
+	}
 	return layoutLines(c, id)
 }
 
