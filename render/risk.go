@@ -98,42 +98,63 @@ func riskBody(r *compute.Risk, f Format) []Node {
 		Align:    []byte{'l'},
 		Source:   src,
 		BoldCols: []bool{false},
-		Note:     "± is one standard error of the simulation: binomial, √(p(1 − p)/N), for a probability; s/√N for a mean; for a percentile, half the spread between the order statistics √(Np(1 − p)) ranks either side of it (distribution-free). Percentiles interpolate between order statistics.",
+		Note:     "Percentiles interpolate between order statistics; P10 is the value that 10% of the trials fall below.",
 	}
 	if c.CostOnly {
 		t.Note = "Present worths are signed: costs are negative, so P10 is the costly end. " + t.Note
 	}
+	se := Table{
+		Caption:  fmt.Sprintf("Risk %s: standard errors of the figures above", r.ID),
+		Header:   []string{""},
+		Align:    []byte{'l'},
+		Source:   src,
+		BoldCols: []bool{false},
+		Note:     "A standard error is the simulation's own uncertainty, which more trials reduce: binomial, √(p(1 − p)/N), for a probability; s/√N for a mean; for a percentile, half the spread between the order statistics √(Np(1 − p)) ranks either side of it (distribution-free).",
+	}
 	rows := [][]string{{"Probability best"}, {"Mean"}, {"P10"}, {"P50 (median)"}, {"P90"}, {"Standard deviation"}, {"Base case"}}
+	ses := [][]string{{"Probability best"}, {"Mean"}, {"P10"}, {"P50 (median)"}, {"P90"}}
 	for _, o := range r.Outcomes {
-		t.Header = append(t.Header, o.Alt.Name)
-		t.Align = append(t.Align, 'r')
-		t.BoldCols = append(t.BoldCols, o.Alt.ID == lead)
-		rows[0] = append(rows[0], f.pm(o.PBest.Value, o.PBest.SE, false))
-		rows[1] = append(rows[1], f.pm(o.Mean.Value, o.Mean.SE, true))
-		rows[2] = append(rows[2], f.pm(o.P10.Value, o.P10.SE, true))
-		rows[3] = append(rows[3], f.pm(o.P50.Value, o.P50.SE, true))
-		rows[4] = append(rows[4], f.pm(o.P90.Value, o.P90.SE, true))
+		for _, x := range []*Table{&t, &se} {
+			x.Header = append(x.Header, o.Alt.Name)
+			x.Align = append(x.Align, 'r')
+			x.BoldCols = append(x.BoldCols, o.Alt.ID == lead)
+		}
+		for k, e := range []compute.Estimate{o.PBest, o.Mean, o.P10, o.P50, o.P90} {
+			if k == 0 {
+				rows[k] = append(rows[k], f.Percent(e.Value))
+				ses[k] = append(ses[k], f.Percent(e.SE))
+			} else {
+				rows[k] = append(rows[k], f.Money(e.Value))
+				ses[k] = append(ses[k], f.Money(e.SE))
+			}
+		}
 		rows[5] = append(rows[5], f.Money(o.SD))
 		rows[6] = append(rows[6], f.Money(o.Base))
 	}
 	if r.DoNothing != nil {
-		t.Header = append(t.Header, "Doing nothing")
-		t.Align = append(t.Align, 'r')
-		t.BoldCols = append(t.BoldCols, lead == compute.DoNothing)
-		rows[0] = append(rows[0], f.pm(r.DoNothing.Value, r.DoNothing.SE, false))
+		for _, x := range []*Table{&t, &se} {
+			x.Header = append(x.Header, "Doing nothing")
+			x.Align = append(x.Align, 'r')
+			x.BoldCols = append(x.BoldCols, lead == compute.DoNothing)
+		}
+		rows[0] = append(rows[0], f.Percent(r.DoNothing.Value))
+		ses[0] = append(ses[0], f.Percent(r.DoNothing.SE))
 		for k := 1; k < len(rows); k++ {
 			rows[k] = append(rows[k], f.Money(0))
 		}
+		for k := 1; k < len(ses); k++ {
+			ses[k] = append(ses[k], f.Money(0))
+		}
 	}
-	t.Rows = rows
-	out = append(out, t)
+	t.Rows, se.Rows = rows, ses
+	out = append(out, t, se)
 
 	// The finding in words.
 	leadID, lp := riskLeader(r)
 	call := Callout{Kind: "note", Title: "Risk"}
-	text := fmt.Sprintf("%s is best in %s of the trials", capital(riskName(c, leadID)), f.pm(lp.Value, lp.SE, false))
+	text := fmt.Sprintf("The choice most often best is %s, in %s of the trials", riskName(c, leadID), f.pm(lp.Value, lp.SE, false))
 	if leadID == c.Recommended {
-		text += fmt.Sprintf(", and so the base case's recommendation holds in %s of them.", f.Percent(r.Holds.Value))
+		text += "; it is the base case's recommendation too."
 	} else {
 		text += fmt.Sprintf("; the base case's recommendation, %s, is best in %s.", riskName(c, c.Recommended), f.pm(r.Holds.Value, r.Holds.SE, false))
 	}
@@ -309,6 +330,7 @@ func mdRisk(rep *compute.Report, f Format, x *parse.Risk) string {
 			for _, it := range n.Items {
 				fmt.Fprintf(&b, ">\n> **Note:** %s\n", escapeMD(it))
 			}
+			b.WriteString("\n")
 		}
 	}
 	return b.String()
