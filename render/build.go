@@ -269,6 +269,9 @@ func (b *builder) inline(n ast.Node, st Inline, out *[]Inline) {
 		case *ast.CodeSpan:
 			if in, ok := b.m.InlineAt[x]; ok {
 				r := Inline{Value: true, Source: in.Expr.Src, Line: in.Expr.Pos.Line, Bold: st.Bold, Italic: st.Italic, Link: st.Link}
+				if r.Link == "" {
+					r.Link = b.valueLink(in.Expr.Src) // its worked solution
+				}
 				r.Text = "n/a"
 				if v, ok := b.rep.Inline[in.Offset]; ok {
 					r.Text = b.f.Value(v)
@@ -468,6 +471,7 @@ func (b *builder) assume(x *parse.Assume) []Node {
 		}
 		t.Rows = append(t.Rows, []string{a.Name, b.f.Num(a.Value), written, strconv.Itoa(a.Line)})
 	}
+	b.traceAssume(&t)
 	return []Node{t}
 }
 
@@ -501,6 +505,7 @@ func (b *builder) alternative(x *parse.Alternative) []Node {
 	if a.Residual != nil {
 		t.Rows = append(t.Rows, []string{"residual", "value at a study period's end", b.f.Money(*a.Residual), "end of a study period that cuts a life", strconv.Itoa(a.ResidualLine)})
 	}
+	b.traceAlternative(&t, a, x)
 	out := []Node{t}
 	if c, r := b.firstComparison(a); r != nil {
 		out = append(out, b.cashflow(a, r, c, fmt.Sprintf("alternative %s, line %d", a.ID, x.Pos.Line)))
@@ -655,6 +660,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 	for _, row := range rows {
 		t.Rows = append(t.Rows, append([]string{row.Label}, row.Cells...))
 	}
+	b.traceResults(&t, c)
 	out = append(out, t)
 
 	// The recommendation.
@@ -690,7 +696,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 		out = append(out, l)
 	}
 	for _, r := range c.Results {
-		eq := Equations{Title: fmt.Sprintf("Worked solution: %s (%s)", r.Alt.Name, r.Alt.ID)}
+		eq := Equations{Title: fmt.Sprintf("Worked solution: %s (%s)", r.Alt.Name, r.Alt.ID), ID: workID(c, r)}
 		for _, w := range r.Work {
 			eq.Steps = append(eq.Steps, b.f.Equation(w))
 		}
@@ -999,10 +1005,13 @@ func (b *builder) wholeOrBlank(x float64) string {
 
 func (b *builder) appendix() []Node {
 	out := []Node{Heading{Level: b.top, Text: []Inline{{Text: "Appendix: calculations"}}, ID: b.slug("appendix")}}
+	out = append(out, Heading{Level: b.top + 1, Text: []Inline{{Text: "Inputs"}}, ID: b.slug("inputs")}, b.inputsAppendix())
 	for _, c := range b.rep.Comparisons {
 		out = append(out, Heading{Level: b.top + 1, Text: []Inline{{Text: "Year-by-year cash flows, comparison " + c.ID}}, ID: b.slug("cash flows " + c.ID)})
 		for _, r := range c.Results {
-			out = append(out, b.schedule(r, c))
+			t := b.schedule(r, c)
+			b.anchorSchedule(&t, r, c)
+			out = append(out, t)
 		}
 	}
 	if t, ok := b.factorTable(); ok {

@@ -157,7 +157,7 @@ func TestBuildDocConveyor(t *testing.T) {
 			app = append(app, "list")
 		}
 	}
-	wantApp := []string{"h:Appendix: calculations", "h:Year-by-year cash flows, comparison eastgate",
+	wantApp := []string{"h:Appendix: calculations", "h:Inputs", "t:Where each input is written", "h:Year-by-year cash flows, comparison eastgate",
 		"t:Cash flows of Partial automation (induction only)", "t:Cash flows of Full sortation system",
 		"h:Factor values used", "t:Compound-interest factors", "h:Conventions", "list"}
 	if !reflect.DeepEqual(app, wantApp) {
@@ -211,6 +211,9 @@ func TestBuildDocProse(t *testing.T) {
 	want := []string{"h1:purpose", "em:life-cycle", "link:the asset plan→https://example.org/plan",
 		"link:https://example.org/auto→https://example.org/auto", "strike:Old option",
 		"h2:inputs", "h2:alternatives", "h2:comparison", "recommendation",
+		// Inline values that read one alternative's result link to its
+		// worked solution (trace.go).
+		"link:−$971,131→#work-pumps-vfd", "link:−$1,068,500→#work-pumps-fixed",
 		"list", "list", "em:a", "quote", "code:code", "table:Item,Cost:lr",
 		"code[]:indented code", "code[text]:plain fenced code", "rule",
 		"list", "code:best() == \"vfd\"", "code:pw(vfd) > 0", "warning", "warning"}

@@ -100,6 +100,12 @@ type Table struct {
 	// BoldCols marks columns to set in bold (the recommended alternative
 	// of a results table).
 	BoldCols []bool
+	// ID anchors the table and RowIDs its rows ("" for none), so that
+	// figures elsewhere can link to them; Trace, when set, holds for each
+	// cell (the shape of Rows) where its figure comes from (trace.go).
+	ID     string
+	RowIDs []string
+	Trace  [][]Trace
 }
 
 // Equations is the worked solution of one alternative: steps of
@@ -107,6 +113,7 @@ type Table struct {
 type Equations struct {
 	Title string
 	Steps []EqText
+	ID    string // anchors the worked solution, for figures that link to it
 }
 
 // Callout is a boxed statement: the recommendation, a warning, a note.

@@ -182,6 +182,8 @@ var htmlFuncs = template.FuncMap{
 	"safeLink":     SafeLink,
 	"colClass":     colClass,
 	"rowClass":     rowClass,
+	"rowID":        rowID,
+	"cellTrace":    cellTrace,
 	"sameTerms":    sameTerms,
 	"termClass":    termClass,
 	"rawHTML":      func(s string) any { return s },
@@ -543,12 +545,16 @@ func tableHTML(t Table) template.HTML {
 			attr[i] = ` class="` + c + `"`
 		}
 	}
+	id := ""
+	if t.ID != "" {
+		id = ` id="` + t.ID + `"` // trace.go: ids hold only [A-Za-z0-9_-]
+	}
 	if t.Caption != "" {
-		b.WriteString(`<figure class="table computed">` + "\n<figcaption>")
+		b.WriteString(`<figure class="table computed"` + id + ">\n<figcaption>")
 		escapeHTML(&b, t.Caption)
 		b.WriteString("</figcaption>")
 	} else {
-		b.WriteString(`<figure class="table">`)
+		b.WriteString(`<figure class="table"` + id + `>`)
 	}
 	b.WriteString("\n<div class=\"scroll\"><table>\n<thead><tr>")
 	for i, h := range t.Header {
@@ -560,10 +566,14 @@ func tableHTML(t Table) template.HTML {
 	}
 	b.WriteString("</tr></thead>\n<tbody>")
 	for r, row := range t.Rows {
+		b.WriteString("\n<tr")
+		if id := rowID(t, r); id != "" {
+			b.WriteString(` id="` + id + `"`)
+		}
 		if rowClass(t, r) != "" {
-			b.WriteString("\n<tr class=\"b\">")
+			b.WriteString(` class="b">`)
 		} else {
-			b.WriteString("\n<tr>")
+			b.WriteString(">")
 		}
 		for i, c := range row {
 			if i == 0 && t.Caption != "" {
@@ -576,6 +586,10 @@ func tableHTML(t Table) template.HTML {
 			}
 			b.WriteString("<td")
 			b.WriteString(attr[i])
+			if tr := cellTrace(t, r, i); tr.Title != "" {
+				writeTraced(&b, c, tr)
+				continue
+			}
 			b.WriteByte('>')
 			escapeHTML(&b, c)
 			b.WriteString("</td>")
@@ -612,7 +626,11 @@ func equationsHTML(e Equations) template.HTML {
 		}
 	}
 	b.Grow(n)
-	b.WriteString("<figure class=\"equations\">\n<figcaption>")
+	b.WriteString("<figure class=\"equations\"")
+	if e.ID != "" {
+		b.WriteString(` id="` + e.ID + `"`)
+	}
+	b.WriteString(">\n<figcaption>")
 	escapeHTML(&b, e.Title)
 	b.WriteString("</figcaption>")
 	for _, s := range e.Steps {

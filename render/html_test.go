@@ -543,7 +543,7 @@ const actionNodes = `{{define "runs"}}{{range .}}{{template "run" .}}{{end}}{{en
 {{define "strike"}}{{if .Strike}}<del>{{template "text" .}}</del>{{else}}{{template "text" .}}{{end}}{{end}}
 {{define "text"}}{{if .Value}}<span class="value" title="= {{.Source}} (line {{.Line}})">{{.Text}}</span>{{else if .Code}}<code>{{.Text}}</code>{{else}}{{.Text}}{{end}}{{end}}
 
-{{define "table"}}<figure class="table{{if .Caption}} computed{{end}}">
+{{define "table"}}<figure class="table{{if .Caption}} computed{{end}}"{{with .ID}} id="{{.}}"{{end}}>
 {{- if .Caption}}
 <figcaption>{{.Caption}}</figcaption>
 {{- end}}
@@ -551,7 +551,7 @@ const actionNodes = `{{define "runs"}}{{range .}}{{template "run" .}}{{end}}{{en
 <thead><tr>{{range $i, $h := .Header}}<th scope="col"{{with colClass $ $i}} class="{{.}}"{{end}}>{{$h}}</th>{{end}}</tr></thead>
 <tbody>
 {{- range $r, $row := .Rows}}
-<tr{{with rowClass $ $r}} class="{{.}}"{{end}}>{{range $i, $c := $row}}{{if and (eq $i 0) $.Caption}}<th scope="row"{{with colClass $ $i}} class="{{.}}"{{end}}>{{$c}}</th>{{else}}<td{{with colClass $ $i}} class="{{.}}"{{end}}>{{$c}}</td>{{end}}{{end}}</tr>
+<tr{{with rowID $ $r}} id="{{.}}"{{end}}{{with rowClass $ $r}} class="{{.}}"{{end}}>{{range $i, $c := $row}}{{if and (eq $i 0) $.Caption}}<th scope="row"{{with colClass $ $i}} class="{{.}}"{{end}}>{{$c}}</th>{{else}}<td{{with colClass $ $i}} class="{{.}}"{{end}}{{$tr := cellTrace $ $r $i}}{{if $tr.Title}} title="{{$tr.Title}}">{{if $tr.Href}}<a class="trace" href="{{$tr.Href}}">{{$c}}</a>{{else}}{{$c}}{{end}}</td>{{else}}>{{$c}}</td>{{end}}{{end}}{{end}}</tr>
 {{- end}}
 </tbody>
 </table></div>
@@ -560,7 +560,7 @@ const actionNodes = `{{define "runs"}}{{range .}}{{template "run" .}}{{end}}{{en
 {{- end}}
 </figure>{{end}}
 
-{{define "equations"}}<figure class="equations">
+{{define "equations"}}<figure class="equations"{{with .ID}} id="{{.}}"{{end}}>
 <figcaption>{{.Title}}</figcaption>
 {{- range .Steps}}
 <div class="eq">
@@ -778,7 +778,7 @@ func TestHTMLTemplateActions(t *testing.T) {
 		t.Fatal(err)
 	}
 	if !bytes.Contains(out, []byte(`<table class="org-table"><th>`)) || bytes.Contains(out, []byte(`<div class="scroll">`)) ||
-		!bytes.Contains(out, []byte(`<figure class="equations">`)) || !bytes.Contains(out, []byte(`<figure class="chart cashflow">`)) {
+		!bytes.Contains(out, []byte(`<figure class="equations"`)) || !bytes.Contains(out, []byte(`<figure class="chart cashflow">`)) {
 		t.Errorf("a folder's nodes.html redefining only \"table\" not used as it should be")
 	}
 }
