@@ -218,3 +218,23 @@ func TestRiskErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestRiskVary: with a vary line only the named inputs are drawn; every
+// other one keeps its stated value, so an alternative that depends only on
+// those has the same present worth in every trial.
+func TestRiskVary(t *testing.T) {
+	src := strings.Replace(linearMemo, "```risk r2\ncompare: c2\n", "```risk r2\ncompare: c2\nvary: x\n", 1)
+	src = strings.Replace(src, "first cost: 150k\n```", "first cost: 150k\nannual cost: 1000 * x\n```", 1)
+	rep := computeMemo(t, src)
+	r := rep.Risks[1]
+	if len(r.Inputs) != 1 || r.Inputs[0].Name != "x" {
+		t.Fatalf("inputs %v", r.Inputs)
+	}
+	c := r.Outcomes[0] // c depends on y alone, which is not drawn
+	if c.Min != c.Max || c.Min != c.Base {
+		t.Errorf("c varies: %v to %v, base %v", c.Min, c.Max, c.Base)
+	}
+	if b := r.Outcomes[1]; !(b.Min < b.Max) {
+		t.Errorf("b does not vary: %v to %v", b.Min, b.Max)
+	}
+}
