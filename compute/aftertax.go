@@ -59,6 +59,12 @@ func (e *env) readTaxSettings(memo *parse.Memo, rep *Report) {
 			e.errs.Add(f.Value.Pos, "amounts in constant money need the general inflation rate in the front matter (inflation: 2.5%%), to find the real rate and to deflate depreciation and loan payments")
 		}
 	}
+	// The memo's rate is the rate its amounts are discounted at; a compare
+	// or replacement block's own rate is converted where it is read.
+	if rep.Rate != nil {
+		r := e.moneyRate(*rep.Rate)
+		rep.Rate = &r
+	}
 }
 
 // deflator is the factor that turns an amount fixed in the money of age t
@@ -80,7 +86,7 @@ func (s *taxSettings) deflation() float64 {
 	return 1/(1+s.inflation.Effective) - 1
 }
 
-// moneyRate turns a comparison's rate into the rate its amounts are
+// moneyRate turns a rate as read into the rate the amounts are
 // discounted at: the market rate for then-current amounts, as read; for
 // constant amounts the real rate, (1 + i) / (1 + f) - 1, or the real rate
 // as written.
@@ -217,7 +223,6 @@ const (
 	labelLoan           = "loan"
 	labelPayments       = "loan payments"
 	labelBalance        = "loan balance repaid"
-	labelDisposalTax    = "salvage, less tax on the gain over book value"
 	labelLossSaving     = "tax saved on the loss at disposal"
 )
 
@@ -336,7 +341,8 @@ func (e *env) view(a *Alternative, after bool, hz Horizon) *Alternative {
 			x := salvage - T*(salvage-bv*s.deflator(L))
 			switch {
 			case salvage != 0:
-				add(&Item{Line: a.salvageLine(), Label: labelDisposalTax, Kind: parse.Salvage, Sign: parse.Benefit, Amount: x})
+				// The original label: a diagram names the year's event.
+				add(&Item{Line: a.salvageLine(), Label: a.salvageLabel(), Kind: parse.Salvage, Sign: parse.Benefit, Amount: x})
 			case x != 0:
 				add(&Item{Line: line, Label: labelLossSaving, Kind: parse.Salvage, Sign: parse.Benefit, Amount: x})
 			}
@@ -383,6 +389,16 @@ func (a *Alternative) salvageLine() int {
 		}
 	}
 	return a.Line
+}
+
+// salvageLabel is the label of a's salvage line.
+func (a *Alternative) salvageLabel() string {
+	for _, it := range a.Items {
+		if it.Kind == parse.Salvage {
+			return it.Label
+		}
+	}
+	return "salvage"
 }
 
 // seriesItems writes the savings x_1, x_2, ... (x_t in year t) as items of

@@ -86,6 +86,9 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 		e.errs.Add(src.Pos, "compare %s has no interest rate; give \"rate: 7%%\" in the front matter or in the block", src.ID)
 		ok = false
 	}
+	if src.Rate != nil {
+		c.Rate = e.moneyRate(c.Rate) // the front matter's is converted already
+	}
 	c.Rate = e.moneyRate(c.Rate)
 	if src.DecideBy.Value.Src != "" {
 		c.DecideBy = src.DecideBy.Value.Src

@@ -124,7 +124,7 @@ func (e *env) replacement(src *parse.Replacement, byID map[string]*Alternative, 
 		}
 		ok = ok && good
 	case front != nil:
-		rp.Rate = e.moneyRate(*front)
+		rp.Rate = *front
 	case e.frontRateFailed:
 		ok = false
 	default:
@@ -224,6 +224,8 @@ func (e *env) serviceAsset(a *Alternative, role string, mv *parse.MarketValue) *
 		for k := 0; k <= a.Life; k++ {
 			s.MarketValue = append(s.MarketValue, x*math.Pow(1-r, float64(k)))
 		}
+	case len(mv.List) == 0:
+		return nil // a line that could not be read, reported already
 	default:
 		s.Market = "list"
 		good := true

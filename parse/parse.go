@@ -263,9 +263,9 @@ func (p *parser) rateSpec(t Text) *RateSpec {
 	if cut < 0 {
 		return rs
 	}
-	// Column of the modifier in the original text.
-	lower := strings.ToLower(t.Src)
-	at := strings.Index(lower, words[cut])
+	// Byte offset of the modifier in the original text: the start of its
+	// field (a name holding "real" is not the modifier).
+	at := wordOffset(t.Src, cut)
 	rs.Value = Text{Src: strings.TrimSpace(t.Src[:at]), Pos: t.Pos}
 	if rs.Value.Src == "" {
 		p.errorf(t.Pos, "the rate's value is missing before %q", words[cut])
@@ -303,6 +303,23 @@ func (p *parser) rateSpec(t Text) *RateSpec {
 		return bad()
 	}
 	return rs
+}
+
+// wordOffset is the byte offset of the n-th space-separated word of s.
+func wordOffset(s string, n int) int {
+	in := false
+	k := -1
+	for i, c := range s {
+		space := c == ' ' || c == '\t'
+		if !space && !in {
+			k++
+			if k == n {
+				return i
+			}
+		}
+		in = !space
+	}
+	return len(s)
 }
 
 // walk visits the Markdown document and turns worth blocks and inline

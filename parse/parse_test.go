@@ -138,6 +138,8 @@ func TestRateSpec(t *testing.T) {
 		{"8% compounded continuously", "8%", "continuous", 0, false},
 		{"3% real", "3%", "real", 0, false},
 		{"7% effective", "7%", "", 0, false},
+		{"realr real", "realr", "real", 0, false},
+		{"nominal_rate nominal monthly", "nominal_rate", "nominal", 12, false},
 		{"6% nominal fortnightly", "", "", 0, true},
 		{"nominal monthly", "", "", 0, true},
 	} {

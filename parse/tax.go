@@ -90,6 +90,7 @@ type Replacement struct {
 
 // MarketValue is a market value by age: "X declining R%" (X now, then
 // X (1 - R)^k after k years) or a list of values now and after each year.
+// A line that could not be read (its error reported) has neither.
 type MarketValue struct {
 	Pos       Pos
 	Start     Text  // X of the declining form
@@ -163,11 +164,11 @@ func (p *parser) marketValue(val Text) *MarketValue {
 		r := Text{Src: strings.TrimSpace(rest), Pos: val.Pos.Shift(len([]rune(val.Src[:m[1]+lead])))}
 		if r.Src == "" {
 			p.errorf(val.Pos.Shift(len([]rune(val.Src[:word]))), "declining needs a rate after it, e.g. \"30000 declining 15%%\"")
-			return nil
+			return &MarketValue{Pos: val.Pos}
 		}
 		if mv.Start.Src == "" {
 			p.errorf(val.Pos, "the market value today is missing before \"declining\", e.g. \"30000 declining 15%%\"")
-			return nil
+			return &MarketValue{Pos: val.Pos}
 		}
 		mv.Declining = &r
 		return mv
@@ -177,13 +178,13 @@ func (p *parser) marketValue(val Text) *MarketValue {
 		t := Text{Src: strings.TrimSpace(a.S), Pos: val.Pos.Shift(len([]rune(val.Src[:a.Off+lead])))}
 		if t.Src == "" {
 			p.errorf(t.Pos, "empty value in the list of market values")
-			return nil
+			return &MarketValue{Pos: val.Pos}
 		}
 		mv.List = append(mv.List, t)
 	}
 	if len(mv.List) < 2 {
 		p.errorf(val.Pos, "a market value is \"X declining R%%\" or a list of values now and after each year (\"30000, 24000, 19000\"); one value gives no life to try")
-		return nil
+		return &MarketValue{Pos: val.Pos}
 	}
 	return mv
 }

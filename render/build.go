@@ -428,6 +428,8 @@ func (b *builder) worthBlock(blk parse.Block) []Node {
 		}
 	case *parse.Expect:
 		return b.expect(x)
+	case *parse.Replacement:
+		return b.replacement(x)
 	case *parse.Risk:
 		return b.risk(x)
 	case *parse.Sensitivity, *parse.Scenario, *parse.Budget:
@@ -506,7 +508,8 @@ func (b *builder) alternative(x *parse.Alternative) []Node {
 		t.Rows = append(t.Rows, []string{"residual", "value at a study period's end", b.f.Money(*a.Residual), "end of a study period that cuts a life", strconv.Itoa(a.ResidualLine)})
 	}
 	b.traceAlternative(&t, a, x)
-	out := []Node{t}
+	t.Rows = append(t.Rows, b.f.taxInputRows(a)...)
+	out := append([]Node{t}, b.altFinance(a)...)
 	if c, r := b.firstComparison(a); r != nil {
 		out = append(out, b.cashflow(a, r, c, fmt.Sprintf("alternative %s, line %d", a.ID, x.Pos.Line)))
 	}
@@ -528,7 +531,7 @@ func (b *builder) firstComparison(a *compute.Alternative) (*compute.Comparison, 
 
 // horizonPhrase is a short description of the span a result's flows cover.
 func (b *builder) horizonPhrase(c *compute.Comparison) string {
-	return fmt.Sprintf("%s at %s", horizonShort(c), b.f.Rate(c.Rate.Effective))
+	return fmt.Sprintf("%s at %s%s", horizonShort(c), b.f.Rate(c.Rate.Effective), afterTaxWords(c))
 }
 
 // cashflow is the arrow diagram of an alternative's net flows under a
@@ -653,6 +656,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 		Source:   fmt.Sprintf("compare %s, line %d", c.ID, c.Line),
 		BoldCols: []bool{false},
 	}
+	t.Note += b.f.BasisText(c)
 	for _, r := range c.Results {
 		t.Align = append(t.Align, 'r')
 		t.BoldCols = append(t.BoldCols, r.Alt.ID == c.Recommended)
@@ -678,6 +682,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 		}
 	}
 	call.Facts = append(call.Facts, KV{"Rate", b.f.RateText(c.Rate)}, KV{"Horizon", HorizonText(c)})
+	call.Facts = append(call.Facts, b.f.basisFacts(c)...)
 	if c.Tie && c.RunnerUp != "" {
 		call.Items = append(call.Items, fmt.Sprintf("Tie: %s and %s are within one currency unit of each other by %s.", name(c, c.Recommended), name(c, c.RunnerUp), measureWord(c)))
 	}
@@ -695,6 +700,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 		}
 		out = append(out, l)
 	}
+	out = append(out, b.financeNodes(c)...)
 	for _, r := range c.Results {
 		eq := Equations{Title: fmt.Sprintf("Worked solution: %s (%s)", r.Alt.Name, r.Alt.ID), ID: workID(c, r)}
 		for _, w := range r.Work {
@@ -963,6 +969,9 @@ func (b *builder) expect(x *parse.Expect) []Node {
 
 // schedule is the year-by-year table of one alternative under a comparison.
 func (b *builder) schedule(r *compute.Result, c *compute.Comparison) Table {
+	if r.AfterTax != nil {
+		return b.afterTaxSchedule(r, c)
+	}
 	t := Table{
 		Caption: fmt.Sprintf("Cash flows of %s", r.Alt.Name),
 		Header:  []string{"Year", "Costs", "Benefits and recovered value", "Net", "Discounted", "Cumulative discounted", "Events"},
@@ -1101,6 +1110,9 @@ func (b *builder) conventions() List {
 	}
 	conv("The tax rate", b.rep.TaxRate)
 	conv("The inflation rate", b.rep.Inflation)
+	for _, s := range b.f.taxConventions(b.rep) {
+		l.Items = append(l.Items, para(s))
+	}
 	l.Items = append(l.Items, para("Factors are the standard discrete compound-interest factors in (X/Y, i, n) notation; (P/A, g, i, n) is the geometric-gradient factor. Money is rounded to whole units for display; the JSON output keeps unrounded values."))
 	return l
 }

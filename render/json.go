@@ -19,6 +19,8 @@ type jsonReport struct {
 	Alternatives []jsonAlternative `json:"alternatives"`
 	Comparisons  []jsonComparison  `json:"comparisons"`
 	Expectations []jsonExpectation `json:"expectations"`
+	// amounts, replacements (tax.go)
+	jsonFinance
 	jsonAnalysis
 	jsonRisks
 	Revision *jsonRevision `json:"revision,omitempty"`
@@ -42,6 +44,8 @@ type jsonAlternative struct {
 	Life      *int    `json:"life"`
 	FirstCost float64 `json:"first_cost"`
 	Line      int     `json:"line"`
+	// depreciation, loan (tax.go)
+	jsonAltFinance
 }
 
 type jsonComparison struct {
@@ -84,6 +88,8 @@ type jsonResult struct {
 	PWBenefits         float64   `json:"pw_benefits"`
 	PWDisbenefits      float64   `json:"pw_disbenefits"`
 	PWSalvageAndResidu float64   `json:"pw_salvage_and_residual"`
+	// the after-tax schedule (tax.go)
+	jsonResultFinance
 }
 
 type jsonStep struct {
@@ -122,6 +128,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 			l := a.Life
 			ja.Life = &l
 		}
+		ja.jsonAltFinance = altFinanceJSON(a)
 		out.Alternatives = append(out.Alternatives, ja)
 	}
 	for _, c := range rep.Comparisons {
@@ -152,6 +159,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 				PWBenefits: r.ByCategory[compute.Benefits], PWDisbenefits: -r.ByCategory[compute.Disbenefits],
 				PWSalvageAndResidu: r.ByCategory[compute.Recovery],
 			})
+			jc.Results[len(jc.Results)-1].jsonResultFinance = resultFinanceJSON(r)
 		}
 		for _, s := range c.Steps {
 			roots := s.DeltaRoots
@@ -167,6 +175,7 @@ func JSON(rep *compute.Report) ([]byte, error) {
 	for _, x := range rep.Expectations {
 		out.Expectations = append(out.Expectations, jsonExpectation{Line: x.Line, Text: x.Text, Passed: x.Passed, Detail: x.Detail})
 	}
+	out.jsonFinance = financeJSON(rep)
 	out.jsonAnalysis = analysisJSON(rep)
 	out.jsonRisks = risksJSON(rep)
 	out.Revision = revisionJSON(rep.Revision)

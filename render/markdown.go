@@ -210,7 +210,9 @@ func mdBlock(rep *compute.Report, f Format, blk parse.Block) string {
 		if a.Residual != nil {
 			rows = append(rows, []string{"residual", "value at a study period's end", f.Money(*a.Residual), "end of a study period that cuts a life", fmt.Sprint(a.ResidualLine)})
 		}
+		rows = append(rows, f.taxInputRows(a)...)
 		table(&b, []string{"Line item", "Kind", "Amount", "When", "Line"}, rows, []bool{false, false, true, false, true})
+		mdAltFinance(&b, a, f)
 	case *parse.Compare:
 		c := findComp(rep, x.ID)
 		if c == nil {
@@ -242,6 +244,8 @@ func mdBlock(rep *compute.Report, f Format, blk parse.Block) string {
 		b.WriteString(mdAnalysis(rep, f, x))
 	case *parse.Risk:
 		b.WriteString(mdRisk(rep, f, x))
+	case *parse.Replacement:
+		b.WriteString(mdReplacement(rep, f, x))
 	case *parse.Place:
 		p := rep.Places[x]
 		if p == nil {
@@ -284,7 +288,7 @@ func findComp(rep *compute.Report, id string) *compute.Comparison {
 }
 
 func mdCompare(b *strings.Builder, c *compute.Comparison, f Format) {
-	fmt.Fprintf(b, "**Comparison `%s`** — rate %s; horizon: %s; decided by %s.\n\n", c.ID, f.RateText(c.Rate), HorizonText(c), RuleText(c))
+	fmt.Fprintf(b, "**Comparison `%s`** — rate %s; horizon: %s; decided by %s.%s\n\n", c.ID, f.RateText(c.Rate), HorizonText(c), RuleText(c), f.BasisText(c))
 	header, rows := f.ResultsTable(c)
 	var cells [][]string
 	right := []bool{false}
@@ -305,6 +309,7 @@ func mdCompare(b *strings.Builder, c *compute.Comparison, f Format) {
 			fmt.Fprintf(b, "%d. %s\n", k+1, escapeMD(f.StepText(c, s)))
 		}
 	}
+	mdFinance(b, c, f)
 	b.WriteString("\nWorked equations:\n")
 	for _, r := range c.Results {
 		fmt.Fprintf(b, "\n*%s* (`%s`):\n\n", escapeMD(r.Alt.Name), r.Alt.ID)
@@ -319,6 +324,10 @@ func mdCompare(b *strings.Builder, c *compute.Comparison, f Format) {
 }
 
 func mdSchedule(b *strings.Builder, r *compute.Result, c *compute.Comparison, f Format) {
+	if r.AfterTax != nil {
+		mdAfterTaxSchedule(b, r, c, f)
+		return
+	}
 	fmt.Fprintf(b, "**Cash flows of %s** (comparison `%s`, %s at %s)", escapeMD(r.Alt.Name), c.ID, horizonShort(c), f.Rate(c.Rate.Effective))
 	if r.FlowsNote != "" {
 		fmt.Fprintf(b, ": %s", r.FlowsNote)
@@ -390,5 +399,6 @@ func appendix(b *bytes.Buffer, rep *compute.Report, f Format) {
 	if rep.Rate != nil && rep.Rate.Conversion != "" {
 		fmt.Fprintf(b, " The memo's rate %s converts as %s.", rep.Rate.Text, rep.Rate.Conversion)
 	}
+	mdTaxConventions(b, rep, f)
 	b.WriteString("\n\n**Caution.** " + Caution + "\n")
 }
