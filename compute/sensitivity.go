@@ -100,6 +100,8 @@ type Sweep struct {
 	// Changes are the values at which the recommendation changes, found
 	// by a root finder between the sweep's points.
 	Changes []Change
+	// Discrete is set for an input that takes whole numbers only.
+	Discrete bool
 }
 
 // Change is a value of an input at which the recommendation changes.
@@ -111,6 +113,9 @@ type Change struct {
 	Exact bool
 	// Worth is the decision measure of From (and of To) at the value.
 	Worth float64
+	// Lo and Hi are the swept values on either side of the change; for a
+	// whole-number input the change lies between them, and At is Hi.
+	Lo, Hi float64
 }
 
 // Breakeven is the value of an input at which the decision changes.
@@ -141,6 +146,11 @@ type Breakeven struct {
 	// Tied is set when the base case is already a tie: the base value is
 	// itself the breakeven.
 	Tied bool
+	// Discrete is set for an input that takes whole numbers only (a life,
+	// a year): Value is then the first whole number at which the
+	// recommendation changes, and Holds the last at which it does not.
+	Discrete bool
+	Holds    float64
 }
 
 // DefaultSwing is the swing of a vary line that gives no percentage.
@@ -161,6 +171,25 @@ func NiceStep(raw float64) float64 {
 		}
 	}
 	return 10 * p
+}
+
+// WholeValues are the whole numbers a range of a whole-number input is
+// swept at: every one from the first to the last, or every k-th where
+// there are more than 60.
+func WholeValues(from, to float64) []float64 {
+	a, b := math.Ceil(from), math.Floor(to)
+	step := math.Max(1, math.Ceil((b-a)/sweepSteps))
+	if (b-a)/1 <= 60 {
+		step = 1
+	}
+	var xs []float64
+	for x := a; x <= b; x += step {
+		xs = append(xs, x)
+	}
+	if len(xs) > 0 && xs[len(xs)-1] != b {
+		xs = append(xs, b)
+	}
+	return xs
 }
 
 // SweepValues are the values a range is swept at: its ends and the
@@ -413,14 +442,24 @@ func (e *env) sensitivity(memo *parse.Memo, src *parse.Sensitivity, rep *Report,
 		for _, p := range swings {
 			sw := &Swing{Name: p.in.name, Rate: p.in.rate, Base: p.in.base, Percent: p.pct}
 			line := &SpiderLine{Name: p.in.name, Rate: p.in.rate, Base: p.in.base}
+			whole := w.discrete(p.in)
 			for _, k := range spiderSteps {
 				ch := k * p.pct
+				x := p.in.base * (1 + ch)
+				if whole && k != 0 {
+					// Whole numbers only: the nearest, at its true change.
+					x = wholeNear(x, p.in.base)
+					if n := len(line.Points); n > 0 && line.Points[n-1].Value == x {
+						continue
+					}
+					ch = (x - p.in.base) / math.Abs(p.in.base)
+				}
 				line.Percent = append(line.Percent, ch)
 				var pt WhatIf
 				if k == 0 {
 					pt = w.base(p.in.base)
 				} else {
-					pt = w.at(p.in, p.in.base*(1+ch))
+					pt = w.at(p.in, x)
 				}
 				line.Points = append(line.Points, pt)
 			}
@@ -474,10 +513,11 @@ type whatIfs struct {
 	runnerUp   string
 	baseMargin float64
 	evals      int
+	disc       map[string]bool
 }
 
 func newWhatIfs(memo *parse.Memo, c *Comparison) *whatIfs {
-	w := &whatIfs{memo: memo, comp: c, rec: c.Recommended}
+	w := &whatIfs{memo: memo, comp: c, rec: c.Recommended, disc: map[string]bool{}}
 	w.baseMargin, w.runnerUp = w.margin(c)
 	return w
 }
@@ -553,6 +593,35 @@ func (w *whatIfs) at(in input, x float64) WhatIf {
 	return p
 }
 
+// discrete reports whether an input takes whole numbers only (a life, a
+// year of a line): its base value is whole, and half a unit off it the memo
+// is invalid for want of a whole number. Swings, sweeps and breakeven
+// searches of such an input keep to whole numbers.
+func (w *whatIfs) discrete(in input) bool {
+	if in.rate || in.base != math.Trunc(in.base) {
+		return false
+	}
+	d, ok := w.disc[in.name]
+	if !ok {
+		p := w.at(in, in.base+0.5)
+		d = !p.Valid() && strings.Contains(p.Invalid, "whole number")
+		w.disc[in.name] = d
+	}
+	return d
+}
+
+// wholeNear rounds x to a whole number other than base, on x's side of it.
+func wholeNear(x, base float64) float64 {
+	r := math.Round(x)
+	if r == base {
+		if x < base {
+			return base - 1
+		}
+		return base + 1
+	}
+	return r
+}
+
 // firstError is the first message of a recomputation's errors, with its
 // line, for a report that says why a value is invalid.
 func firstError(err error) string {
@@ -577,7 +646,13 @@ func (w *whatIfs) marginFunc(in input) func(float64) float64 {
 // finds where the recommendation changes between them.
 func (w *whatIfs) sweep(in input, from, to float64) *Sweep {
 	s := &Sweep{Name: in.name, Rate: in.rate, Base: in.base, From: from, To: to}
-	for _, x := range SweepValues(from, to) {
+	xs := SweepValues(from, to)
+	whole := w.discrete(in)
+	if whole {
+		xs = WholeValues(from, to)
+	}
+	s.Discrete = whole
+	for _, x := range xs {
 		s.Points = append(s.Points, w.at(in, x))
 	}
 	for k := 1; k < len(s.Points); k++ {
@@ -595,7 +670,20 @@ func (w *whatIfs) sweep(in input, from, to float64) *Sweep {
 			}
 			return left.marginOfPoint(p)
 		}
-		ch := Change{From: a.Recommended, To: b.Recommended}
+		ch := Change{From: a.Recommended, To: b.Recommended, Lo: a.Value, Hi: b.Value}
+		if whole {
+			ch.At, ch.Exact, ch.Worth = b.Value, true, math.NaN()
+			for j, r := range w.comp.Results {
+				if r.Alt.ID == b.Recommended {
+					ch.Worth = b.Worths[j]
+				}
+			}
+			if b.Recommended == DoNothing {
+				ch.Worth = 0
+			}
+			s.Changes = append(s.Changes, ch)
+			continue
+		}
 		if x, ok := Root(f, a.Value, b.Value); ok {
 			ch.At, ch.Exact = x, true
 		} else {
@@ -696,9 +784,11 @@ func (w *whatIfs) breakeven(in input) *Breakeven {
 		return b
 	}
 	up, down := breakevenScan(in)
-	type found struct {
-		lo, hi WhatIf // lo on the base side
+	whole := w.discrete(in)
+	if whole {
+		up, down = wholeScan(up, in.base), wholeScan(down, in.base)
 	}
+	type found = bracket
 	effect := false
 	scan := func(xs []float64) *found {
 		prev := w.base(in.base)
@@ -728,6 +818,9 @@ func (w *whatIfs) breakeven(in input) *Breakeven {
 	if !effect && fUp == nil && fDown == nil {
 		b.NoEffect = true
 		return b
+	}
+	if whole {
+		return w.wholeBreakeven(in, b, fUp, fDown)
 	}
 	solve := func(f *found) (float64, string, bool, float64) {
 		root, ok := Root(w.marginFunc(in), f.lo.Value, f.hi.Value)
@@ -793,6 +886,66 @@ func (w *whatIfs) breakeven(in input) *Breakeven {
 	}
 	return b
 }
+
+// wholeScan rounds scan values to whole numbers, dropping the base and
+// repeats.
+func wholeScan(xs []float64, base float64) []float64 {
+	var out []float64
+	for _, x := range xs {
+		r := math.Round(x)
+		if r == base || len(out) > 0 && out[len(out)-1] == r {
+			continue
+		}
+		out = append(out, r)
+	}
+	return out
+}
+
+// wholeBreakeven closes in on the change of recommendation of a
+// whole-number input by bisection over whole numbers: the last value at
+// which the base recommendation holds and the first at which it does not,
+// nearest the base on either side.
+func (w *whatIfs) wholeBreakeven(in input, b *Breakeven, sides ...*bracket) *Breakeven {
+	b.Discrete = true
+	var rs []bracket
+	for _, f := range sides {
+		if f == nil {
+			continue
+		}
+		lo, hi := f.lo, f.hi
+		for math.Abs(hi.Value-lo.Value) > 1 {
+			p := w.at(in, math.Round((lo.Value+hi.Value)/2))
+			if !p.Valid() {
+				break
+			}
+			if (p.Margin > 0) == (lo.Margin > 0) {
+				lo = p
+			} else {
+				hi = p
+			}
+		}
+		rs = append(rs, bracket{lo, hi})
+	}
+	if len(rs) == 0 {
+		return b
+	}
+	sort.SliceStable(rs, func(i, j int) bool {
+		return math.Abs(rs[i].hi.Value-in.base) < math.Abs(rs[j].hi.Value-in.base)
+	})
+	r := rs[0]
+	v := r.hi.Value
+	b.Value, b.Holds, b.To, b.MarginAt = &v, r.lo.Value, r.hi.Recommended, r.hi.Margin
+	b.Verified = math.Abs(r.hi.Value-r.lo.Value) == 1 && r.lo.Recommended == w.rec && r.hi.Recommended != w.rec
+	if len(rs) > 1 {
+		o := rs[1].hi.Value
+		b.Other, b.OtherTo = &o, rs[1].hi.Recommended
+	}
+	return b
+}
+
+// bracket is a pair of what-ifs on either side of a change of sign of the
+// margin, lo on the base side.
+type bracket struct{ lo, hi WhatIf }
 
 // inputText shows an input's value in a message.
 func inputText(in input, x float64) string {

@@ -307,3 +307,41 @@ func BenchmarkSensitivityExample(b *testing.B) {
 	rep, _ := compute.Compute(full)
 	b.Logf("sensitivity block: %d recomputations", rep.Sensitivities[0].Evaluations)
 }
+
+// TestBreakevenWholeNumbers: an input that must be a whole number (a life)
+// is searched over whole numbers; the breakeven is the first life at
+// which the recommendation changes, next to the last at which it holds,
+// as an enumeration of every life from 1 to the base finds.
+func TestBreakevenWholeNumbers(t *testing.T) {
+	src := "---\nrate: 6%\n---\n\n```assume\nshort_life = 14\n```\n\n" +
+		"```alternative cheap\nlife: short_life\nfirst cost: 100k\nannual cost: 2k\n```\n\n" +
+		"```alternative dear\nlife: 30\nfirst cost: 190k\nannual cost: 1k\n```\n\n" +
+		"```compare c\nhorizon: perpetual\n```\n\n```sensitivity s\nvary: short_life by ±30%\nrange short_life: 4 to 25\nbreakeven: short_life\n```\n"
+	rep := mustReport(t, src)
+	s := rep.Sensitivities[0]
+	be := s.Breakevens[0]
+	if be.Value == nil || !be.Discrete || !be.Verified || math.Abs(*be.Value-be.Holds) != 1 {
+		t.Fatalf("breakeven %+v", be)
+	}
+	// Enumeration: the longest life below the base at which the base
+	// recommendation no longer holds.
+	want := math.NaN()
+	for life := 1.0; life < 14; life++ {
+		c := mustRecompute(t, rep, compute.Overrides{Values: map[string]float64{"short_life": life}})
+		if c.Recommended != s.Recommended {
+			want = life
+		}
+	}
+	if *be.Value != want {
+		t.Errorf("breakeven life %v, enumeration %v", *be.Value, want)
+	}
+	for _, sw := range s.Swings {
+		if sw.Low.Value != math.Trunc(sw.Low.Value) || sw.High.Value != math.Trunc(sw.High.Value) || !sw.Low.Valid() || !sw.High.Valid() {
+			t.Errorf("swing of a life to %v and %v", sw.Low.Value, sw.High.Value)
+		}
+	}
+	sw := s.Ranges[0]
+	if !sw.Discrete || len(sw.Points) != 22 || len(sw.Changes) != 1 || sw.Changes[0].Hi-sw.Changes[0].Lo != 1 {
+		t.Errorf("sweep: discrete %v, %d points, changes %+v", sw.Discrete, len(sw.Points), sw.Changes)
+	}
+}

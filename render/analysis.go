@@ -417,6 +417,10 @@ func sweepSentence(f aFmt, s *compute.Sensitivity, sw *compute.Sweep) string {
 	n := inputName(sw.Name, sw.Rate)
 	var parts []string
 	for _, ch := range sw.Changes {
+		if sw.Discrete {
+			parts = append(parts, fmt.Sprintf("from %s to %s between %s = %s and %s", name(c, ch.From), name(c, ch.To), n, f.input(sw.Name, sw.Rate, ch.Lo), f.input(sw.Name, sw.Rate, ch.Hi)))
+			continue
+		}
 		at := f.input(sw.Name, sw.Rate, ch.At)
 		if !ch.Exact {
 			at = "about " + at
@@ -470,6 +474,14 @@ func breakevenSentence(f aFmt, s *compute.Sensitivity, be *compute.Breakeven) st
 		return out
 	}
 	v := *be.Value
+	if be.Discrete {
+		out := fmt.Sprintf("%s (whole numbers only): %s stays recommended at %s and %s is recommended at %s (base %s).", n, name(c, s.Recommended),
+			f.input(be.Name, be.Rate, be.Holds), name(c, be.To), f.input(be.Name, be.Rate, v), base)
+		if be.Other != nil {
+			out += fmt.Sprintf(" On the other side of the base value it changes to %s at %s.", name(c, be.OtherTo), f.input(be.Name, be.Rate, *be.Other))
+		}
+		return out
+	}
 	out := fmt.Sprintf("%s: the recommendation changes from %s to %s at %s (base %s, %s).", n, name(c, s.Recommended), name(c, be.To),
 		f.input(be.Name, be.Rate, v), base, change(f.Format, be.Base, v))
 	if be.Verified {
@@ -1226,7 +1238,11 @@ func (b *builder) sweepChart(s *compute.Sensitivity, sw *compute.Sweep) (Chart, 
 		if math.IsNaN(x.Worth) {
 			continue
 		}
-		ch.Marks = append(ch.Marks, Mark{X: x.At, Y: x.Worth, HasX: true, HasY: true, Label: "changes at " + b.af().input(sw.Name, sw.Rate, x.At), Series: -1, Kind: "crossover"})
+		label := "changes at " + b.af().input(sw.Name, sw.Rate, x.At)
+		if sw.Discrete {
+			label = "changes between " + b.af().input(sw.Name, sw.Rate, x.Lo) + " and " + b.af().input(sw.Name, sw.Rate, x.Hi)
+		}
+		ch.Marks = append(ch.Marks, Mark{X: x.At, Y: x.Worth, HasX: true, HasY: true, Label: label, Series: -1, Kind: "crossover"})
 	}
 	ch.XMin, ch.XMax, ch.XTicks = b.axis(sw.From, sw.To, 8, xf, true)
 	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
@@ -1254,7 +1270,6 @@ type jsonSensitivity struct {
 	Breakevens  []jsonBreakeven  `json:"breakevens"`
 	Ranges      []jsonSweep      `json:"ranges"`
 	Spider      []jsonSpiderLine `json:"spider"`
-	Evaluations int              `json:"evaluations"`
 }
 
 type jsonSwing struct {
@@ -1284,6 +1299,8 @@ type jsonBreakeven struct {
 	Limits       []string `json:"search_limits,omitempty"`
 	NoEffect     bool     `json:"no_effect,omitempty"`
 	Tied         bool     `json:"tied,omitempty"`
+	Discrete     bool     `json:"whole_numbers,omitempty"`
+	Holds        *float64 `json:"last_value_holding,omitempty"`
 }
 
 type jsonWhatIf struct {
@@ -1419,8 +1436,7 @@ func analysisJSON(rep *compute.Report) jsonAnalysis {
 	for _, s := range rep.Sensitivities {
 		c := s.Compare
 		js := jsonSensitivity{ID: s.ID, Compare: c.ID, Measure: s.Measure, Recommended: s.Recommended, RunnerUp: s.RunnerUp,
-			Margin: s.Margin, Swings: []jsonSwing{}, Breakevens: []jsonBreakeven{}, Ranges: []jsonSweep{}, Spider: []jsonSpiderLine{},
-			Evaluations: s.Evaluations}
+			Margin: s.Margin, Swings: []jsonSwing{}, Breakevens: []jsonBreakeven{}, Ranges: []jsonSweep{}, Spider: []jsonSpiderLine{}}
 		for _, sw := range s.Swings {
 			j := jsonSwing{Name: sw.Name, BaseValue: sw.Base, LowValue: sw.Low.Value, HighValue: sw.High.Value,
 				LowMargin: finite(sw.Low.Margin), HighMargin: finite(sw.High.Margin), LowInvalid: sw.Low.Invalid, HighInvalid: sw.High.Invalid}
@@ -1441,6 +1457,9 @@ func analysisJSON(rep *compute.Report) jsonAnalysis {
 			if be.Value != nil {
 				j.Recommended = strOrNil(be.To)
 				j.MarginAt = finite(be.MarginAt)
+				if be.Discrete {
+					j.Discrete, j.Holds = true, finite(be.Holds)
+				}
 			}
 			js.Breakevens = append(js.Breakevens, j)
 		}
