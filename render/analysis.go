@@ -193,7 +193,7 @@ func sensitivityParts(f aFmt, s *compute.Sensitivity) []aPart {
 	if len(s.Swings) > 0 {
 		t := &aTable{
 			Caption: "Sensitivity of comparison " + c.ID + ", widest swing first",
-			Header:  []string{"Input", "Base value", "Low", "High", "Margin at low", "Margin at high", "Recommendation"},
+			Header:  []string{"Input", "Base value", "Low", "High", "Margin at low", "Margin at high", "Recommendation changes"},
 			Align:   []byte{'l', 'r', 'r', 'r', 'r', 'r', 'l'},
 			Note:    fmt.Sprintf("Margin: %s of %s less that of the best other choice; base %s. Each input is moved alone.", measure, rec, f.Money(s.Margin)),
 		}
@@ -242,15 +242,15 @@ func sensitivityParts(f aFmt, s *compute.Sensitivity) []aPart {
 func swingVerdict(c *compute.Comparison, rec string, sw *compute.Swing) string {
 	var ch []string
 	if sw.Low.Valid() && sw.Low.Recommended != rec {
-		ch = append(ch, name(c, sw.Low.Recommended)+" at low")
+		ch = append(ch, "at low: "+name(c, sw.Low.Recommended))
 	}
 	if sw.High.Valid() && sw.High.Recommended != rec {
-		ch = append(ch, name(c, sw.High.Recommended)+" at high")
+		ch = append(ch, "at high: "+name(c, sw.High.Recommended))
 	}
 	if len(ch) == 0 {
-		return "holds"
+		return "no"
 	}
-	return "changes: " + strings.Join(ch, "; ")
+	return strings.Join(ch, "; ")
 }
 
 // textTornado draws the tornado with characters for the Markdown writer:
@@ -514,9 +514,9 @@ func scenarioParts(f aFmt, s *compute.Scenario) []aPart {
 	}
 	title := "Scenario " + s.ID
 	if s.Name != s.ID {
-		title += ": " + s.Name
+		title += " (" + s.Name + ")"
 	}
-	parts = append(parts, aPart{Para: title + ". " + strings.Join(vals, "; ") + ". Every other input keeps its base value, and every assumption that uses a changed one follows it."})
+	parts = append(parts, aPart{Para: title + " sets " + andList(vals) + ". Every other input keeps its base value, and every assumption that uses a changed one follows it."})
 	var changed, same []string
 	for _, r := range s.Comparisons {
 		c := r.Base
