@@ -89,7 +89,6 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 	if src.Rate != nil {
 		c.Rate = e.moneyRate(c.Rate) // the front matter's is converted already
 	}
-	c.Rate = e.moneyRate(c.Rate)
 	if src.DecideBy.Value.Src != "" {
 		c.DecideBy = src.DecideBy.Value.Src
 	}
