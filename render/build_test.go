@@ -19,7 +19,7 @@ func loadReport(t testing.TB, path string) *compute.Report {
 	if err != nil {
 		t.Fatal(err)
 	}
-	m, err := parse.Parse(path, src)
+	m, err := parse.ParseWith(path, src, parse.Options{Resolve: besideFiles(path)})
 	if err != nil {
 		t.Fatalf("%s: %v", path, err)
 	}

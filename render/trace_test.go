@@ -7,9 +7,19 @@ import (
 	"strings"
 	"testing"
 
-	"worth/compute"
 	"worth/parse"
 )
+
+// besideFiles is a resolver for test memos that read CSV files ("cash
+// flows from:"): the files beside the memo (the command line's own rules
+// are tested in cmd/worth).
+func besideFiles(memo string) parse.Resolver {
+	return func(path string) (string, []byte, error) {
+		name := filepath.Join(filepath.Dir(memo), path)
+		b, err := os.ReadFile(name)
+		return name, b, err
+	}
+}
 
 // TestTraceableFigures: in the HTML of each example, every figure of the
 // assumptions, alternatives and results tables carries a title naming its
@@ -25,18 +35,7 @@ func TestTraceableFigures(t *testing.T) {
 	id := regexp.MustCompile(` id="([^"]+)"`)
 	for _, file := range files {
 		t.Run(filepath.Base(file), func(t *testing.T) {
-			src, err := os.ReadFile(file)
-			if err != nil {
-				t.Fatal(err)
-			}
-			m, err := parse.Parse(file, src)
-			if err != nil {
-				t.Fatal(err)
-			}
-			rep, err := compute.Compute(m)
-			if err != nil {
-				t.Fatal(err)
-			}
+			rep := loadReport(t, file)
 			doc := BuildDoc(rep, DocOptions{})
 			out, err := HTML(doc, HTMLOptions{})
 			if err != nil {
