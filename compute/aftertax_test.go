@@ -14,10 +14,12 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
+	"os"
 	"strings"
 	"testing"
 
 	"worth/compute"
+	"worth/parse"
 )
 
 // depSpec is a depreciation line of a generated alternative.
@@ -452,5 +454,25 @@ func TestAmountsConstantWithRealRate(t *testing.T) {
 	}
 }
 
-// findAfterTax keeps the compiler honest about the exported table type.
-var _ = compute.TaxYear{}
+// BenchmarkAfterTaxExamples parses and computes the after-tax and
+// replacement examples (the target for an example: under 2 ms).
+func BenchmarkAfterTaxExamples(b *testing.B) {
+	for _, name := range []string{"laser-cutter", "dump-truck"} {
+		src, err := os.ReadFile("../examples/" + name + ".md")
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.Run(name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				memo, err := parse.Parse(name+".md", src)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if _, err := compute.Compute(memo); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

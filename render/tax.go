@@ -562,6 +562,14 @@ func (b *builder) eacChart(rp *compute.Replacement) Chart {
 			Label: fmt.Sprintf("%s: %s", yearsText(s.Economic), b.f.Money(-s.AW))})
 		alt = append(alt, fmt.Sprintf("%s's least equivalent annual cost is %s, kept %s", s.Alt.Name, b.f.Money(-s.AW), yearsText(s.Economic)))
 	}
+	if rp.Keep && rp.ReplaceAfter != rp.Defender.Economic {
+		k := rp.ReplaceAfter
+		ch.Marks = append(ch.Marks, Mark{X: float64(k), Y: -rp.Defender.Lives[k-1].AW, HasX: true, HasY: true, Series: 0, Kind: "life",
+			Label: "replace after " + yearsText(k)})
+	}
+	if rp.Keep {
+		alt = append(alt, "at these estimates the defender is best replaced after "+yearsText(rp.ReplaceAfter))
+	}
 	if math.IsInf(ylo, 1) {
 		ylo, yhi = 0, 1
 	}

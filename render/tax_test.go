@@ -108,10 +108,21 @@ func TestReplacementInEveryWriter(t *testing.T) {
 			}
 		}
 	})
-	if chart == nil || len(chart.Series) != 2 || len(chart.Marks) != 2 {
+	if chart == nil || len(chart.Series) != 2 {
 		t.Fatalf("the EAC chart: %+v", chart)
 	}
 	rp := rep.Replacements[0]
+	// Each economic life is marked on its own curve, and the year to
+	// replace on the defender's where it is another.
+	marked := map[[2]float64]bool{}
+	for _, m := range chart.Marks {
+		marked[[2]float64{float64(m.Series), m.X}] = true
+	}
+	for k, want := range [][2]float64{{0, float64(rp.Defender.Economic)}, {1, float64(rp.Challenger.Economic)}, {0, float64(rp.ReplaceAfter)}} {
+		if !marked[want] {
+			t.Errorf("mark %d: no mark at %v on series %v", k, want[1], want[0])
+		}
+	}
 	if len(chart.Series[0].X) != len(rp.Defender.Lives) || len(chart.Series[1].X) != len(rp.Challenger.Lives) {
 		t.Errorf("the chart has %d and %d points for %d and %d lives", len(chart.Series[0].X), len(chart.Series[1].X), len(rp.Defender.Lives), len(rp.Challenger.Lives))
 	}
