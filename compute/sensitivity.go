@@ -4,8 +4,11 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"worth/expr"
 	"worth/parse"
@@ -439,26 +442,37 @@ func (e *env) sensitivity(memo *parse.Memo, src *parse.Sensitivity, rep *Report,
 		for _, p := range swings {
 			inRange[p.in.name] = true
 		}
+		// The values of the swings, spider lines and sweeps are known
+		// beforehand: compute them on every core first.
+		inputs := map[string]input{}
+		var keys []whatIfKey
+		for _, p := range swings {
+			inputs[p.in.name] = p.in
+			xs, _ := spiderValues(p.in, p.pct, w.discrete(p.in))
+			for _, x := range xs {
+				if x != p.in.base {
+					keys = append(keys, whatIfKey{p.in.name, x})
+				}
+			}
+		}
+		for _, p := range ranges {
+			inputs[p.in.name] = p.in
+			for _, x := range w.sweepValues(p.in, p.from, p.to) {
+				keys = append(keys, whatIfKey{p.in.name, x})
+			}
+		}
+		for _, in := range bes {
+			w.discrete(in)
+		}
+		w.prefetch(keys, inputs)
 		for _, p := range swings {
 			sw := &Swing{Name: p.in.name, Rate: p.in.rate, Base: p.in.base, Percent: p.pct}
 			line := &SpiderLine{Name: p.in.name, Rate: p.in.rate, Base: p.in.base}
-			whole := w.discrete(p.in)
-			for _, k := range spiderSteps {
-				ch := k * p.pct
-				x := p.in.base * (1 + ch)
-				if whole && k != 0 {
-					// Whole numbers only: the nearest, at its true change.
-					x = wholeNear(x, p.in.base)
-					if n := len(line.Points); n > 0 && line.Points[n-1].Value == x {
-						continue
-					}
-					ch = (x - p.in.base) / math.Abs(p.in.base)
-				}
-				line.Percent = append(line.Percent, ch)
-				var pt WhatIf
-				if k == 0 {
-					pt = w.base(p.in.base)
-				} else {
+			xs, pcts := spiderValues(p.in, p.pct, w.discrete(p.in))
+			for k, x := range xs {
+				line.Percent = append(line.Percent, pcts[k])
+				pt := w.base(p.in.base)
+				if x != p.in.base {
 					pt = w.at(p.in, x)
 				}
 				line.Points = append(line.Points, pt)
@@ -483,10 +497,10 @@ func (e *env) sensitivity(memo *parse.Memo, src *parse.Sensitivity, rep *Report,
 			sw.Spread = spread(s.Margin, sw.Low, sw.High)
 		}
 		sort.SliceStable(s.Swings, func(i, j int) bool { return s.Swings[i].Spread > s.Swings[j].Spread })
-		for _, in := range bes {
-			s.Breakevens = append(s.Breakevens, w.breakeven(in))
-		}
-		s.Evaluations = w.evals
+		// Each breakeven search on a core of its own.
+		s.Breakevens = make([]*Breakeven, len(bes))
+		parallel(len(bes), func(k int) { s.Breakevens[k] = w.breakeven(bes[k]) })
+		s.Evaluations = int(w.evals.Load())
 	}
 }
 
@@ -512,12 +526,49 @@ type whatIfs struct {
 	rec        string      // the base recommendation
 	runnerUp   string
 	baseMargin float64
-	evals      int
+	evals      atomic.Int64
+	mu         sync.Mutex
 	disc       map[string]bool
+	// cache holds what-ifs computed ahead, in parallel (prefetch); it is
+	// only read while the analyses run.
+	cache map[whatIfKey]WhatIf
+}
+
+type whatIfKey struct {
+	name string
+	x    float64
+}
+
+// prefetch computes the what-ifs at the given values on every core, so
+// that the analyses that follow find them ready. The results do not
+// depend on the number of cores.
+func (w *whatIfs) prefetch(keys []whatIfKey, inputs map[string]input) {
+	out := make([]WhatIf, len(keys))
+	parallel(len(keys), func(k int) { out[k] = w.eval(inputs[keys[k].name], keys[k].x) })
+	for k, key := range keys {
+		w.cache[key] = out[k]
+	}
+}
+
+// parallel runs f(0) ... f(n-1) on as many goroutines as there are cores.
+func parallel(n int, f func(k int)) {
+	workers := min(runtime.GOMAXPROCS(0), n)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for g := 0; g < workers; g++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for k := int(next.Add(1) - 1); k < n; k = int(next.Add(1) - 1) {
+				f(k)
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 func newWhatIfs(memo *parse.Memo, c *Comparison) *whatIfs {
-	w := &whatIfs{memo: memo, comp: c, rec: c.Recommended, disc: map[string]bool{}}
+	w := &whatIfs{memo: memo, comp: c, rec: c.Recommended, disc: map[string]bool{}, cache: map[whatIfKey]WhatIf{}}
 	w.baseMargin, w.runnerUp = w.margin(c)
 	return w
 }
@@ -560,15 +611,23 @@ func (w *whatIfs) base(v float64) WhatIf {
 	return p
 }
 
-// at recomputes the memo with the input at x.
+// at is the what-if with the input at x.
 func (w *whatIfs) at(in input, x float64) WhatIf {
+	if p, ok := w.cache[whatIfKey{in.name, x}]; ok {
+		return p
+	}
+	return w.eval(in, x)
+}
+
+// eval recomputes the memo with the input at x.
+func (w *whatIfs) eval(in input, x float64) WhatIf {
 	ov := Overrides{}
 	if in.rate {
 		ov.Rate = &x
 	} else {
 		ov.Values = map[string]float64{in.name: x}
 	}
-	w.evals++
+	w.evals.Add(1)
 	p := WhatIf{Value: x, Margin: math.NaN()}
 	rep, err := Recompute(w.memo, ov)
 	if err != nil {
@@ -601,11 +660,15 @@ func (w *whatIfs) discrete(in input) bool {
 	if in.rate || in.base != math.Trunc(in.base) {
 		return false
 	}
+	w.mu.Lock()
 	d, ok := w.disc[in.name]
+	w.mu.Unlock()
 	if !ok {
-		p := w.at(in, in.base+0.5)
+		p := w.eval(in, in.base+0.5)
 		d = !p.Valid() && strings.Contains(p.Invalid, "whole number")
+		w.mu.Lock()
 		w.disc[in.name] = d
+		w.mu.Unlock()
 	}
 	return d
 }
@@ -646,13 +709,9 @@ func (w *whatIfs) marginFunc(in input) func(float64) float64 {
 // finds where the recommendation changes between them.
 func (w *whatIfs) sweep(in input, from, to float64) *Sweep {
 	s := &Sweep{Name: in.name, Rate: in.rate, Base: in.base, From: from, To: to}
-	xs := SweepValues(from, to)
 	whole := w.discrete(in)
-	if whole {
-		xs = WholeValues(from, to)
-	}
 	s.Discrete = whole
-	for _, x := range xs {
+	for _, x := range w.sweepValues(in, from, to) {
 		s.Points = append(s.Points, w.at(in, x))
 	}
 	for k := 1; k < len(s.Points); k++ {
@@ -703,6 +762,37 @@ func (w *whatIfs) sweep(in input, from, to float64) *Sweep {
 		s.Changes = append(s.Changes, ch)
 	}
 	return s
+}
+
+// sweepValues are the values a range of the input is swept at.
+func (w *whatIfs) sweepValues(in input, from, to float64) []float64 {
+	if w.discrete(in) {
+		return WholeValues(from, to)
+	}
+	return SweepValues(from, to)
+}
+
+// spiderValues are the values of a spider line (the swing's ends among
+// them) and their changes from the base value as fractions: the base
+// value moved by each of spiderSteps times the swing, or for a
+// whole-number input the nearest whole numbers, at their true changes.
+func spiderValues(in input, pct float64, whole bool) (xs, changes []float64) {
+	for _, k := range spiderSteps {
+		ch := k * pct
+		x := in.base * (1 + ch)
+		if k == 0 {
+			x = in.base
+		} else if whole {
+			x = wholeNear(x, in.base)
+			if n := len(xs); n > 0 && xs[n-1] == x {
+				continue
+			}
+			ch = (x - in.base) / math.Abs(in.base)
+		}
+		xs = append(xs, x)
+		changes = append(changes, ch)
+	}
+	return xs, changes
 }
 
 // marginOfPoint is the margin of w.rec at a what-if, from its worths.
