@@ -131,6 +131,23 @@ func (s *sampler) Variance() float64 {
 	return math.NaN()
 }
 
+// SD is the distribution's standard deviation.
+func (s *sampler) SD() float64 {
+	sd := math.Sqrt(s.Variance())
+	if !math.IsInf(sd, 0) && !math.IsNaN(sd) {
+		return sd
+	}
+	// Fix (fuzzing, FuzzPipeline): the variance of triangular(1, 100,
+	// 1e300) overflows though its root does not; the root is then taken of
+	// the variance of the parameters divided by the largest of them.
+	if s.kind == "normal" || s.kind == "lognormal" {
+		return math.Abs(s.b) // the parameter is the standard deviation
+	}
+	scale := max(math.Abs(s.a), math.Abs(s.b), math.Abs(s.c))
+	t := sampler{kind: s.kind, a: s.a / scale, b: s.b / scale, c: s.c / scale}
+	return math.Sqrt(t.Variance()) * scale
+}
+
 // quantile is the value below which a fraction u of draws fall, exact for
 // every kind but pert, for which it is the triangular distribution's on the
 // same (min, mode, max): the engine uses it only to choose points inside
@@ -140,10 +157,20 @@ func (s *sampler) quantile(u float64) float64 {
 	case "triangular", "pert":
 		a, b, c := s.a, s.b, s.c
 		f := (b - a) / (c - a)
+		// Fix (fuzzing, FuzzPipeline): over a range wider than about
+		// 1e154 the product under the root overflowed, and
+		// triangular(1, 100, 1e300) drew -Inf; the root is then taken of
+		// each factor.
 		if u < f {
-			return a + math.Sqrt(u*(c-a)*(b-a))
+			if p := u * (c - a) * (b - a); !math.IsInf(p, 0) {
+				return a + math.Sqrt(p)
+			}
+			return a + math.Sqrt(u*(c-a))*math.Sqrt(b-a)
 		}
-		return c - math.Sqrt((1-u)*(c-a)*(c-b))
+		if p := (1 - u) * (c - a) * (c - b); !math.IsInf(p, 0) {
+			return c - math.Sqrt(p)
+		}
+		return c - math.Sqrt((1-u)*(c-a))*math.Sqrt(c-b)
 	case "uniform":
 		return s.a + (s.b-s.a)*u
 	case "normal":

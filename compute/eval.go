@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"unicode/utf8"
@@ -147,7 +148,12 @@ func (e *env) compileFor(t parse.Text, allowResults bool, what string) *expr.Exp
 	}
 	for _, v := range x.Vars() {
 		if _, ok := e.vars[v.Name]; !ok {
-			e.unknownName(t, v)
+			// Fix (fuzzing, FuzzPipeline): a name whose own assumption
+			// failed (1/0, a cycle) was reported as unknown, "did you mean"
+			// itself; its error is reported where it is defined.
+			if _, defined := slices.BinarySearch(e.names, v.Name); !defined {
+				e.unknownName(t, v)
+			}
 			bad = true
 		}
 	}

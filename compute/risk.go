@@ -276,7 +276,7 @@ func (e *env) risk(memo *parse.Memo, src *parse.Risk, rep *Report, comps map[str
 		return nil
 	}
 	for _, in := range inputs {
-		r.Inputs = append(r.Inputs, &RiskInput{Name: in.Name, Line: in.Line, Dist: in.Dist, Base: in.Base, Mean: in.s.Mean(), SD: math.Sqrt(in.s.Variance())})
+		r.Inputs = append(r.Inputs, &RiskInput{Name: in.Name, Line: in.Line, Dist: in.Dist, Base: in.Base, Mean: in.s.Mean(), SD: in.s.SD()})
 	}
 	var progress func(done int, counts []int)
 	if opt.Progress != nil {
@@ -479,17 +479,37 @@ func percentile(sorted []float64, p float64) Estimate {
 // deviation s of the values, summed in trial order.
 func moments(xs []float64) (Estimate, float64) {
 	n := float64(len(xs))
+	mean, sd := meanSD(xs, 1)
+	if math.IsInf(mean, 0) || math.IsInf(sd, 0) || math.IsNaN(sd) {
+		// Fix (fuzzing, FuzzPipeline): present worths near 1e300 (an
+		// input drawn from triangular(1, 100, 1e300)) overflowed the sums,
+		// and an infinite standard deviation reached the report, which
+		// then could not be written as JSON. The sums are then taken of
+		// the values divided by the largest of them.
+		scale := 0.0
+		for _, x := range xs {
+			scale = max(scale, math.Abs(x))
+		}
+		mean, sd = meanSD(xs, scale)
+		mean, sd = mean*scale, sd*scale
+	}
+	return Estimate{Value: mean, SE: sd / math.Sqrt(n)}, sd
+}
+
+// meanSD is the mean and the standard deviation of the values divided by
+// scale.
+func meanSD(xs []float64, scale float64) (mean, sd float64) {
+	n := float64(len(xs))
 	sum := 0.0
 	for _, x := range xs {
-		sum += x
+		sum += x / scale
 	}
-	mean := sum / n
+	mean = sum / n
 	ss := 0.0
 	for _, x := range xs {
-		ss += (x - mean) * (x - mean)
+		ss += (x/scale - mean) * (x/scale - mean)
 	}
-	sd := math.Sqrt(ss / (n - 1))
-	return Estimate{Value: mean, SE: sd / math.Sqrt(n)}, sd
+	return mean, math.Sqrt(ss / (n - 1))
 }
 
 // proportion is a count out of n with its binomial standard error.

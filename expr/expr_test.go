@@ -546,15 +546,26 @@ func TestConcurrentEval(t *testing.T) {
 	wg.Wait()
 }
 
+// FuzzCompile compiles arbitrary text, then evaluates it with arbitrary
+// values of the variables (checkEval, in fuzz_test.go).
 func FuzzCompile(f *testing.F) {
 	for _, s := range []string{
 		"a * b + pf(0.07, 10)", "$1,250,000", "480k + 1.2M * 7%", "pw(steel) > -1.5M",
 		`best(screens) == "steel"`, `pw("wedge-wire")`, "(1+i)^n", "pf(7,100)", "1 +", `a\`,
 		`"abc`, "((", "a > b ? 1 : 2", "€12,500.50 % 7",
+		"a / b", "a ^ b", "(-a) ^ 0.5", "pf(a, b) * pa(a, n)", "c + a", "flag ? c : a", "abc % b", "-k * M ^ n", "!flag && a < b",
 	} {
-		f.Add(s)
+		f.Add(s, 3.0, 4.0, "x", true)
 	}
-	f.Fuzz(checkNoPanic)
+	for _, v := range [][2]float64{{0, 0}, {-1, 0.5}, {1e308, 10}, {math.Inf(1), 1}, {math.NaN(), -2}, {5e-324, -1e308}} {
+		f.Add("a / b + a * b - a ^ b + pa(a, b)", v[0], v[1], "", false)
+	}
+	f.Fuzz(func(t *testing.T, src string, a, b float64, c string, flag bool) {
+		checkNoPanic(t, src)
+		if e, err := Compile(src, testOptions()); err == nil {
+			checkEval(t, e, a, b, c, flag)
+		}
+	})
 }
 
 func BenchmarkEval(b *testing.B) {
