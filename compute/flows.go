@@ -337,7 +337,7 @@ func (a *Alternative) perpetualPW(i float64) float64 {
 			}
 		}
 	}
-	v := sumTerms(a.cycleTerms(i, -1))
+	v := a.cycleValue(i) // sumTerms(a.cycleTerms(i, -1)), without building the terms (scale.go)
 	if a.Life > 0 {
 		v *= AP(i, float64(a.Life)) / i
 	}

@@ -665,6 +665,7 @@ func (b *builder) compare(c *compute.Comparison) []Node {
 		t.Rows = append(t.Rows, append([]string{row.Label}, row.Cells...))
 	}
 	b.traceResults(&t, c)
+	t = b.resultsTable(t, c) // one row an alternative past a handful (scale.go)
 	out = append(out, t)
 
 	// The recommendation.
@@ -763,7 +764,7 @@ func mentions(text, id string) bool {
 // alternative, with each one's rate of return, the crossover rates and the
 // comparison's rate.
 func (b *builder) rateChart(c *compute.Comparison) Chart {
-	curves, xs := c.Curves()
+	curves, xs := chartCurves(c) // the leaders only past a handful (scale.go)
 	word := "Present worth"
 	if c.Horizon.Perpetual() {
 		word = "Capitalized worth"
@@ -800,7 +801,7 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 	rate := c.Rate.Effective
 	ch.Marks = append(ch.Marks, Mark{X: rate, HasX: true, Label: "rate " + b.f.Rate(rate), Series: -1, Kind: "rate"})
 	var alt []string
-	for _, r := range c.Results {
+	for _, r := range chartResults(c) {
 		roots := r.IRRRoots
 		if r.IRR != nil && len(roots) == 0 {
 			roots = []float64{*r.IRR}
@@ -834,7 +835,7 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 	// escalation near the rate): the span is at most three times the
 	// largest worth at the comparison's rate or at a crossover.
 	ref := 0.0
-	for _, r := range c.Results {
+	for _, r := range chartResults(c) {
 		ref = math.Max(ref, math.Abs(r.PW))
 	}
 	for _, x := range xs {
@@ -855,6 +856,7 @@ func (b *builder) rateChart(c *compute.Comparison) Chart {
 		text += " The curves do not cross in this range."
 	}
 	ch.Alt = text
+	noteLeaders(&ch, c)
 	return ch
 }
 
@@ -893,7 +895,7 @@ func (b *builder) paybackChart(c *compute.Comparison) (Chart, bool) {
 	xmax := 0.0
 	ylo, yhi := 0.0, 0.0
 	var alt []string
-	for k, r := range c.Results {
+	for k, r := range chartResults(c) {
 		s := Series{Name: r.Alt.Name, Emphasis: leading(c, r.Alt.ID)}
 		for _, y := range r.Flows {
 			s.X = append(s.X, float64(y.Year))
@@ -926,6 +928,7 @@ func (b *builder) paybackChart(c *compute.Comparison) (Chart, bool) {
 	ch.XMin, ch.XMax, ch.XTicks = b.axis(0, xmax, 12, "year", true)
 	ch.YMin, ch.YMax, ch.YTicks = b.axis(ylo, yhi, 6, "money", false)
 	ch.Alt = fmt.Sprintf("Cumulative undiscounted net cash flow of each alternative from year 0 to year %d, %s. %s.", int(xmax), b.horizonPhrase(c), capital(strings.Join(alt, "; ")))
+	noteLeaders(&ch, c)
 	return ch, true
 }
 

@@ -298,7 +298,7 @@ func mdCompare(b *strings.Builder, c *compute.Comparison, f Format) {
 	for _, r := range rows {
 		cells = append(cells, append([]string{r.Label}, r.Cells...))
 	}
-	table(b, header, cells, right)
+	mdResultsTable(b, c, header, cells, right) // one row an alternative past a handful (scale.go)
 	fmt.Fprintf(b, "\n> **Recommendation:** %s\n", escapeMD(f.Recommendation(c)))
 	for _, w := range Warnings(c) {
 		fmt.Fprintf(b, ">\n> **Note:** %s\n", escapeMD(w))
