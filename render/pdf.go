@@ -97,12 +97,11 @@ func PDF(doc *Doc, opt PDFOptions) ([]byte, error) {
 	if err := w.pdf.Error(); err != nil {
 		return nil, fmt.Errorf("pdf: %v", err)
 	}
-	var buf bytes.Buffer
-	buf.Grow(256 << 10)
-	if err := w.pdf.Output(&buf); err != nil {
-		return nil, fmt.Errorf("pdf: %v", err)
-	}
-	return buf.Bytes(), nil
+	// The document is drawn: let it go before the pages are compressed,
+	// where the writer's memory peaks, and take the bytes without a copy
+	// (scale.go).
+	w.doc = nil
+	return pdfOutput(w.pdf)
 }
 
 // ---------------------------------------------------------------------

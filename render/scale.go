@@ -5,6 +5,8 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/go-pdf/fpdf"
+
 	"worth/compute"
 )
 
@@ -212,4 +214,30 @@ func mdResultsTable(b *strings.Builder, c *compute.Comparison, header []string, 
 	}
 	table(b, header, rows, right)
 	fmt.Fprintf(b, "\n%s\n", rankWords(c))
+}
+
+// pdfOutput closes the PDF and returns its bytes. fpdf writes the whole
+// file from its own buffer in one Write; the bytes are taken as they are
+// rather than copied into a second buffer (for 1,000 alternatives, an 11
+// MB copy at the moment every page is still held), since fpdf writes
+// nothing more to its buffer after Output.
+func pdfOutput(p *fpdf.Fpdf) ([]byte, error) {
+	var out takeBytes
+	if err := p.Output(&out); err != nil {
+		return nil, fmt.Errorf("pdf: %v", err)
+	}
+	return out.b, nil
+}
+
+// takeBytes is a writer that keeps what it is given: the first slice as
+// it is, later ones appended.
+type takeBytes struct{ b []byte }
+
+func (t *takeBytes) Write(p []byte) (int, error) {
+	if t.b == nil {
+		t.b = p
+	} else {
+		t.b = append(t.b[:len(t.b):len(t.b)], p...) // a copy, never into fpdf's buffer
+	}
+	return len(p), nil
 }

@@ -14,7 +14,6 @@ import (
 
 	"worth/compute"
 	"worth/parse"
-	"worth/render"
 )
 
 const usage = `worth evaluates decision memos: Markdown with fenced cash-flow blocks.
@@ -102,33 +101,16 @@ type buildOptions struct {
 // formats are the output formats by name.
 var formats = map[string]bool{"md": true, "json": true, "html": true, "pdf": true, "csv": true}
 
-// renderAll writes the report in each format asked for. The HTML and PDF
-// writers share one document model, built once.
+// renderAll writes the report in each format asked for and returns every
+// output (renderEach, scale.go, hands each over as it is made).
 func renderAll(rep *compute.Report, fmts []string, opt buildOptions) ([][]byte, error) {
-	var doc *render.Doc
 	out := make([][]byte, len(fmts))
-	for i, f := range fmts {
-		var err error
-		switch f {
-		case "md":
-			out[i] = render.Markdown(rep)
-		case "json":
-			out[i], err = render.JSON(rep)
-		case "csv":
-			out[i] = render.CSV(rep)
-		case "html", "pdf":
-			if doc == nil {
-				doc = render.BuildDoc(rep, render.DocOptions{AllowHTML: opt.allowHTML, AppendixOnly: opt.appendixOnly})
-			}
-			if f == "html" {
-				out[i], err = render.HTML(doc, render.HTMLOptions{TemplateDir: opt.templateDir})
-			} else {
-				out[i], err = render.PDF(doc, render.PDFOptions{BaseDir: filepath.Dir(rep.Memo.File)})
-			}
-		}
-		if err != nil {
-			return nil, err
-		}
+	err := renderEach(rep, fmts, opt, func(i int, data []byte) error {
+		out[i] = data
+		return nil
+	})
+	if err != nil {
+		return nil, err
 	}
 	return out, nil
 }
@@ -221,28 +203,15 @@ func build(args []string, stdout, stderr io.Writer) int {
 			return 2
 		}
 	}
-	// Render everything first; write only when all succeeded.
-	fmts := make([]string, len(targets))
+	// Render everything, each output staged beside its target as it is
+	// made; rename into place only when all succeeded (scale.go).
+	fmts, paths := make([]string, len(targets)), make([]string, len(targets))
 	for i, t := range targets {
-		fmts[i] = t.format
+		fmts[i], paths[i] = t.format, t.path
 	}
-	outputs, err := renderAll(rep, fmts, opt)
-	if err != nil {
+	if err := writeOutputs(rep, paths, fmts, opt, stdout); err != nil {
 		fmt.Fprintf(stderr, "worth build: %v\n", err)
 		return 2
-	}
-	for i, t := range targets {
-		if t.path == "-" {
-			if _, err := stdout.Write(outputs[i]); err != nil {
-				fmt.Fprintf(stderr, "worth build: %v\n", err)
-				return 2
-			}
-			continue
-		}
-		if err := writeAtomic(t.path, outputs[i]); err != nil {
-			fmt.Fprintf(stderr, "worth build: %v\n", err)
-			return 2
-		}
 	}
 	for _, x := range rep.Expectations {
 		if !x.Passed {
