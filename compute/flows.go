@@ -116,7 +116,7 @@ func (a *Alternative) addAge(y *YearFlow, t int, cut bool) {
 			c := it.category()
 			y.ByCategory[c] += v
 			if it.Kind == parse.Once || it.Kind == parse.Periodic || it.Kind == parse.Salvage || (it.Kind == parse.FirstCost && y.Year > 0) {
-				y.Notes = append(y.Notes, it.Label)
+				y.Notes = addNote(y.Notes, it.Label)
 			}
 		}
 	}

@@ -141,6 +141,9 @@ func Compile(src string, opt Options) (ex *Expr, err error) {
 			ex, err = nil, &Error{Msg: fmt.Sprintf("cannot read expression: %v", r)}
 		}
 	}()
+	if len(src) > MaxLen {
+		return nil, tooLong(src) // limits.go
+	}
 	toks, lerr := lex(src)
 	if lerr != nil {
 		return nil, lerr

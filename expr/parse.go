@@ -40,6 +40,7 @@ type parser struct {
 	i     int
 	funcs map[string]Func
 	idArg map[string]bool
+	depth int // nesting of unary (limits.go)
 	vars  []Ref
 	calls []Ref
 	ops   []opRef
@@ -213,6 +214,11 @@ func (p *parser) add() (*node, *Error) { return p.leftAssoc(p.mul, "+", "-") }
 func (p *parser) mul() (*node, *Error) { return p.leftAssoc(p.unary, "*", "/", "%") }
 
 func (p *parser) unary() (*node, *Error) {
+	// Every nested level passes through here (limits.go).
+	if err := p.enter(p.peek()); err != nil {
+		return nil, err
+	}
+	defer p.leave()
 	if !p.isOp("-", "+", "!") {
 		return p.power()
 	}

@@ -126,6 +126,7 @@ func (p *parser) alternative(h BlockHead, lines []srcLine) Block {
 		p.gradients(fl, val)
 		a.Lines = append(a.Lines, fl)
 	}
+	p.tooManyLines(a) // limits.go
 	return a
 }
 

@@ -35,6 +35,8 @@ type Options struct {
 	// Resolve reads the files the memo names; nil: a memo that names a
 	// file is an error.
 	Resolve Resolver
+	// Limits bound the memo (limits.go); zero fields take the defaults.
+	Limits Limits
 }
 
 // Include is a file a memo read: where it is named, and the name the

@@ -27,6 +27,9 @@ type Memo struct {
 	// Includes lists the files the memo names ("cash flows from:"), in
 	// source order.
 	Includes []*Include
+	// Limits are the bounds the memo was read under, defaults filled in
+	// (limits.go); compute checks its own against them.
+	Limits Limits
 }
 
 // Text is a piece of source text (usually an expression) and where it starts.

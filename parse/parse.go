@@ -48,11 +48,24 @@ func Parse(file string, src []byte) (*Memo, error) {
 // (see csv.go).
 func ParseWith(file string, src []byte, opt Options) (*Memo, error) {
 	p := &parser{
-		memo: &Memo{File: file, Source: src, Nodes: map[ast.Node]Block{}, InlineAt: map[ast.Node]*Inline{}},
-		idx:  newLineIndex(file, src),
-		opt:  opt,
+		memo:   &Memo{File: file, Source: src, Nodes: map[ast.Node]Block{}, InlineAt: map[ast.Node]*Inline{}},
+		idx:    newLineIndex(file, src),
+		opt:    opt,
+		limits: opt.Limits.WithDefaults(),
+	}
+	p.memo.Limits = p.limits
+	// A memo too large, or not UTF-8 text, is not read further (limits.go).
+	if !p.checkSource(src) {
+		p.memo.Doc = ast.NewDocument()
+		return p.memo, p.errs.Err()
 	}
 	body := p.frontMatter(src)
+	// Markdown shaped to make the reader take quadratic time is not read
+	// (prose.go).
+	if !p.checkProse(body) {
+		p.memo.Doc = ast.NewDocument()
+		return p.memo, p.errs.Err()
+	}
 	doc := Markdown().Parser().Parse(text.NewReader(body))
 	p.memo.Doc = doc
 	p.walk(doc, body)
@@ -68,6 +81,11 @@ type parser struct {
 	idx  *lineIndex
 	errs ErrorList
 	opt  Options
+	// limits bound the memo (limits.go); blocks and alts count the worth
+	// blocks read so far.
+	limits               Limits
+	blocks, alts         int
+	overBlocks, overAlts bool
 }
 
 func (p *parser) errorf(pos Pos, format string, args ...any) {
@@ -425,6 +443,9 @@ func (p *parser) fenced(n *ast.FencedCodeBlock, body []byte) {
 	if notYet[kind] {
 		p.errorf(infoPos, "the %s block is part of the memo language but this version of worth does not read it yet", kind)
 		return
+	}
+	if !p.countBlock(kind, infoPos) {
+		return // past a limit (limits.go)
 	}
 	lines := p.blockLines(n, body)
 	var b Block

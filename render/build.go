@@ -225,13 +225,20 @@ func (b *builder) inlines(n ast.Node) []Inline {
 
 // add appends a run, merging it into the previous one where the style is
 // the same.
+// maxRunBytes bounds the text merged into one run of inline text.
+const maxRunBytes = 4096
+
 func add(out *[]Inline, r Inline) {
 	if r.Text == "" && !r.Break {
 		return
 	}
 	if k := len(*out) - 1; k >= 0 && !r.Value && !r.Break {
 		p := &(*out)[k]
-		if !p.Value && !p.Break && p.Bold == r.Bold && p.Italic == r.Italic && p.Code == r.Code &&
+		// Fix (hostile input): a paragraph of 80,000 short lines took
+		// seconds, since each line was appended to one growing string; a
+		// run stops taking more text at maxRunBytes (never reached by a
+		// real paragraph), which keeps the work linear.
+		if len(p.Text) < maxRunBytes && !p.Value && !p.Break && p.Bold == r.Bold && p.Italic == r.Italic && p.Code == r.Code &&
 			p.Strike == r.Strike && p.Link == r.Link && p.RawHTML == r.RawHTML {
 			p.Text += r.Text
 			return
