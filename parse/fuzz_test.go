@@ -83,6 +83,7 @@ var hostileSeeds = [][]byte{
 	[]byte("---\ntitle: x\n"),
 	[]byte("\xef\xbb\xbf---\r\ntitle: a\r\nrate: 7%\r\n---\r\n```alternative a\r\nlife: 5\r\nfirst cost: 1\r\n```\r\n"),
 	[]byte("---\n: :\n- x\n---\n"),
+	[]byte("---\ntitle: a\rto: b\u2028from: c\u0085date: d\u2029rate: 7%\n---\n"),
 	[]byte("---\nrate: nominal\ntax rate: 7% nominal compounded\ninflation: real real\n---\n"),
 	[]byte("```alternative\n```\n```alternative a b c\n```\n```assume x\n```\n"),
 	[]byte("> ```alternative a\n> life: 5\n> first cost: 1\n> ```\n\n- ```compare c\n  alternatives: a\n  ```\n"),

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"regexp"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
@@ -129,7 +130,7 @@ func (p *parser) frontMatter(src []byte) []byte {
 		return src
 	}
 	yamlText := src[yamlStart:off]
-	p.readYAML(yamlText, p.idx.pos(yamlStart).Line-1)
+	p.readYAML(yamlText, yamlStart)
 	body := make([]byte, len(src))
 	copy(body, src)
 	for i := 0; i < end; i++ {
@@ -142,15 +143,18 @@ func (p *parser) frontMatter(src []byte) []byte {
 
 var frontKeys = []string{"title", "to", "from", "date", "subject", "currency", "rate", "tax rate", "inflation", "paper", "logo", "amounts"}
 
-func (p *parser) readYAML(y []byte, lineOffset int) {
+// readYAML reads the front matter y, which starts at byte start of the
+// memo.
+func (p *parser) readYAML(y []byte, start int) {
+	at := p.yamlAt(y, start)
 	var doc yaml.Node
 	if err := yaml.Unmarshal(y, &doc); err != nil {
 		msg := err.Error()
-		line := lineOffset + 1
+		line := 1
 		// yaml errors read "yaml: line N: ..."; take the line.
 		var n int
 		if _, e := fmtSscanLine(msg, &n); e == nil {
-			line = lineOffset + n
+			line = n
 			if i := strings.Index(msg, ": "); i >= 0 {
 				msg = msg[i+2:]
 				if j := strings.Index(msg, ": "); j >= 0 {
@@ -164,7 +168,7 @@ func (p *parser) readYAML(y []byte, lineOffset int) {
 		if strings.Contains(msg, "mapping values are not allowed") {
 			msg += "; a value that holds \": \" must be in quotes, e.g. title: \"Intake screens: steel or wedge-wire\""
 		}
-		p.errorf(Pos{File: p.memo.File, Line: line, Col: 1}, "front matter is not valid YAML: %s", msg)
+		p.errorf(at(line, 1), "front matter is not valid YAML: %s", msg)
 		return
 	}
 	if len(doc.Content) == 0 {
@@ -172,15 +176,15 @@ func (p *parser) readYAML(y []byte, lineOffset int) {
 	}
 	m := doc.Content[0]
 	if m.Kind != yaml.MappingNode {
-		p.errorf(Pos{File: p.memo.File, Line: lineOffset + m.Line, Col: m.Column}, "front matter must be a list of \"key: value\" lines")
+		p.errorf(at(m.Line, m.Column), "front matter must be a list of \"key: value\" lines")
 		return
 	}
 	fm := &p.memo.Front
 	seen := map[string]bool{}
 	for i := 0; i+1 < len(m.Content); i += 2 {
 		k, v := m.Content[i], m.Content[i+1]
-		keyPos := Pos{File: p.memo.File, Line: lineOffset + k.Line, Col: k.Column}
-		valPos := Pos{File: p.memo.File, Line: lineOffset + v.Line, Col: v.Column}
+		keyPos := at(k.Line, k.Column)
+		valPos := at(v.Line, v.Column)
 		key := strings.ToLower(strings.Join(strings.Fields(k.Value), " "))
 		if v.Kind != yaml.ScalarNode {
 			p.errorf(valPos, "front matter value of %q must be plain text", k.Value)
@@ -225,6 +229,34 @@ func (p *parser) readYAML(y []byte, lineOffset int) {
 			}
 			fm.Extra = append(fm.Extra, f)
 		}
+	}
+}
+
+// yamlAt turns a line and column of the YAML header y, which starts at
+// byte start of the memo, into a position in the memo.
+//
+// Fix (fuzzing, FuzzParse): YAML ends a line at a lone CR and at U+0085,
+// U+2028 and U+2029 too, where the memo's lines (and every other position)
+// end only at LF; a key after one was placed a line too far down, past the
+// end of the memo's line.
+func (p *parser) yamlAt(y []byte, start int) func(line, col int) Pos {
+	starts := []int{0} // byte offset of each YAML line in y
+	for i := 0; i < len(y); {
+		r, n := utf8.DecodeRune(y[i:])
+		switch r {
+		case '\r':
+			if i+1 < len(y) && y[i+1] == '\n' {
+				n = 2
+			}
+			starts = append(starts, i+n)
+		case '\n', '\u0085', '\u2028', '\u2029':
+			starts = append(starts, i+n)
+		}
+		i += n
+	}
+	return func(line, col int) Pos {
+		line = min(max(line, 1), len(starts))
+		return p.idx.pos(start + starts[line-1]).Shift(max(col, 1) - 1)
 	}
 }
 
