@@ -136,6 +136,9 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 			return nil
 		}
 	}
+	if !e.checkWork(src, members, hz) {
+		return nil // past a limit (limits.go)
+	}
 	c.Show = showList(src, members, hz, c.Base != "")
 	for _, a := range members {
 		c.Results = append(c.Results, e.evaluateOn(c, a, i, hz))
@@ -150,6 +153,9 @@ func (e *env) comparison(src *parse.Compare, alts []*Alternative, byID map[strin
 		savings(c)
 	}
 	decide(c)
+	if !e.checkFinite(c, src) {
+		return nil // an overflow (limits.go)
+	}
 	return c
 }
 

@@ -45,6 +45,7 @@ func compute(memo *parse.Memo, ov *Overrides, opt Options) (*Report, error) {
 	var errs parse.ErrorList
 	e := newEnv(memo.File, &errs)
 	e.overrides = ov
+	e.limits = memo.Limits
 	rep := &Report{Memo: memo, Inline: map[int]Value{}, Places: map[*parse.Place]*Placement{}}
 	fm := memo.Front
 	rep.Title = fm.Title.Value.Src

@@ -35,6 +35,10 @@ type env struct {
 	// na is the measure that did not apply in the evaluation under way
 	// (see notApplicableIn).
 	na *notApplicable
+	// limits are the memo's bounds and scheduleYears the rows of the
+	// comparisons so far (limits.go).
+	limits        parse.Limits
+	scheduleYears int
 }
 
 // factorFuncs are the compound-interest factors callable in expressions,
@@ -66,6 +70,10 @@ func newEnv(file string, errs *parse.ErrorList) *env {
 		x, err := numArgs("pgeo", args, 3, "(g, i, n)")
 		if err != nil {
 			return nil, err
+		}
+		// Fix (limits): as for the other factors; it gave NaN.
+		if x[1] <= -1 || x[0] <= -1 {
+			return nil, fmt.Errorf("pgeo: the rate and the growth must be above -100%%")
 		}
 		return PGeo(x[0], x[1], x[2]), nil
 	}
@@ -204,8 +212,14 @@ func (e *env) year(t parse.Text, what string, min int) (int, bool) {
 	if !ok {
 		return 0, false
 	}
-	if v != math.Trunc(v) || v < float64(min) || v > 100000 {
+	if v != math.Trunc(v) || v < float64(min) {
 		e.errs.Add(t.Pos, "%s must be a whole number of years of at least %d, got %s", what, min, trimFloat(v))
+		return 0, false
+	}
+	// Fix (limits): a year past the bound said "at least 1", as if it were
+	// too small.
+	if v > MaxYear {
+		e.errs.Add(t.Pos, "%s of %s years is past the %s years worth accepts", what, trimFloat(v), parse.Thousands(MaxYear))
 		return 0, false
 	}
 	return int(v), true

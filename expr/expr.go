@@ -240,7 +240,9 @@ func (e *Expr) Number(vars map[string]any) (float64, error) {
 			return 0, &Error{Msg: "the result is not a number (NaN: 0/0, or a fractional power of a negative number?)"}
 		}
 		if math.IsInf(x, 0) {
-			return 0, &Error{Msg: "the result is infinite (a division by zero?)"}
+			// Fix (limits): a huge power (10^400) is infinite too, not only a
+			// division by zero.
+			return 0, &Error{Msg: "the result is infinite (a division by zero, or a number past about 1.8 × 10^308)"}
 		}
 		return x, nil
 	case bool:

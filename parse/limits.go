@@ -137,7 +137,8 @@ func LimitHint(name string, n int) string {
 	return fmt.Sprintf("(raise it with --limit %s=%s)", name, SizeOrCount(name, 2*n))
 }
 
-// SizeOrCount writes a limit's value for a reader: 8 MiB, 10,000.
+// SizeOrCount writes a limit's value as the --limit flag reads it: 8MiB,
+// 10000.
 func SizeOrCount(name string, n int) string {
 	for _, li := range LimitTable {
 		if li.Name == name && li.Bytes {
@@ -150,7 +151,7 @@ func SizeOrCount(name string, n int) string {
 			return strconv.Itoa(n)
 		}
 	}
-	return Thousands(n)
+	return strconv.Itoa(n)
 }
 
 // Thousands writes n with thousands separators: 10,000.

@@ -51,6 +51,16 @@ func group(s string) string {
 
 // number formats |x| with the given decimals and thousands separators.
 func number(x float64, decimals int) string {
+	// Fix (limits): a figure that is not finite prints "n/a" (compute keeps
+	// them out of reports; this is the last guard), and one of 10^15 or
+	// more prints as 1.235 × 10^300, not as 301 digits.
+	switch {
+	case math.IsNaN(x) || math.IsInf(x, 0):
+		return "n/a"
+	case math.Abs(x) >= 1e15:
+		m, e, _ := strings.Cut(strconv.FormatFloat(math.Abs(x), 'e', 3, 64), "e")
+		return m + " × 10^" + strings.TrimLeft(strings.TrimPrefix(e, "+"), "0")
+	}
 	s := strconv.FormatFloat(math.Abs(x), 'f', decimals, 64)
 	intPart, frac, _ := strings.Cut(s, ".")
 	out := group(intPart)
@@ -102,7 +112,7 @@ func (f Format) Num(x float64) string {
 		}
 	}
 	s := number(x, d)
-	if d > 0 {
+	if d > 0 && !strings.Contains(s, "×") {
 		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
 	}
 	if x < 0 && !isZero(s) {

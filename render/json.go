@@ -1,9 +1,6 @@
 package render
 
 import (
-	"bytes"
-	"encoding/json"
-
 	"worth/compute"
 )
 
@@ -179,12 +176,6 @@ func JSON(rep *compute.Report) ([]byte, error) {
 	out.jsonAnalysis = analysisJSON(rep)
 	out.jsonRisks = risksJSON(rep)
 	out.Revision = revisionJSON(rep.Revision)
-	var buf bytes.Buffer
-	enc := json.NewEncoder(&buf)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(out); err != nil {
-		return nil, err
-	}
-	return buf.Bytes(), nil
+	// A NaN or infinity is written as null with a warning (jsonsafe.go).
+	return encodeJSON(out)
 }

@@ -46,7 +46,8 @@ func TestCashFlowsFrom(t *testing.T) {
 		{"../outside.csv", []string{"--allow-outside"}, 0, ""},
 		{filepath.Join(root, "outside.csv"), nil, 2, at + `cannot read cash flows from "` + filepath.Join(root, "outside.csv") + `": ` + filepath.ToSlash(filepath.Join(root, "outside.csv")) + ` is outside the memo's folder (` + filepath.ToSlash(dir) + `); a memo reads only files in its own folder, unless --allow-outside is given` + "\n"},
 		{"missing.csv", nil, 2, at + `cannot read cash flows from "missing.csv": no such file ` + filepath.Join(dir, "missing.csv") + "\n"},
-		{"big.csv", nil, 2, at + `cannot read cash flows from "big.csv": the file is 1.0 MiB; a file a memo reads may be at most 1.0 MiB (split it, or summarize the flows by year)` + "\n"},
+		{"big.csv", nil, 2, at + `cannot read cash flows from "big.csv": the file is 1.0 MiB; a file a memo reads may be at most 1.0 MiB (split it, or summarize the flows by year) (raise it with --limit file-size=2MiB)` + "\n"},
+		{"big.csv", []string{"--limit", "file-size=2MiB", "--limit", "lines=300000"}, 0, ""},
 		{"bad.csv", nil, 2, filepath.Join(dir, "bad.csv") + `:3:3: the amount must be a number, e.g. -12500 or 12,500, got "four hundred"` + "\n"},
 	}
 	if symlinked {

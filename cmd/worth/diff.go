@@ -106,6 +106,7 @@ func diff(args []string, stdout, stderr io.Writer) int {
 	format := fs.String("format", "", "the note's `FORMAT`: md, html or pdf (default: from the -o extension)")
 	var lo loadOptions
 	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let a memo read files (cash flows from: FILE.csv) outside its own folder")
+	addLimitFlag(fs, &lo.limits)
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth diff [-o FILE] OLD.md NEW.md\n\n"+
 			"Reports what changed between two versions of a memo: every input line that\n"+

@@ -20,6 +20,8 @@ const maxIncludeBytes = 1 << 20
 type loadOptions struct {
 	// allowOutside lets a memo read files outside its own folder.
 	allowOutside bool
+	// limits are the bounds raised with --limit (limits.go).
+	limits parse.Limits
 }
 
 // memoFiles reads the files a memo names, relative to the memo's folder,
@@ -27,6 +29,7 @@ type loadOptions struct {
 type memoFiles struct {
 	dir          string // the memo's folder, as given ("." for none)
 	allowOutside bool
+	maxBytes     int // the file-size limit
 	// open reads a file by its path (joined to dir); nil: the file system.
 	open func(path string) ([]byte, error)
 	// read lists the files read, by the names used in positions.
@@ -54,10 +57,15 @@ func (m *memoFiles) resolve(path string) (string, []byte, error) {
 		if err != nil {
 			return name, nil, err
 		}
-		if len(data) > maxIncludeBytes {
-			return name, nil, tooBig(int64(len(data)))
+		if len(data) > m.maxBytes {
+			return name, nil, tooBig(int64(len(data)), m.maxBytes)
 		}
 		return name, data, nil
+	}
+	// Fix (hostile input): a named pipe or a device would block or never
+	// end; only regular files (and folders, reported below) are opened.
+	if st, err := os.Stat(name); err == nil && !st.Mode().IsRegular() && !st.IsDir() {
+		return name, nil, fmt.Errorf("%s is not a regular file (a pipe, device or socket); a memo reads CSV files", name)
 	}
 	f, err := os.Open(name)
 	if err != nil {
@@ -70,23 +78,23 @@ func (m *memoFiles) resolve(path string) (string, []byte, error) {
 	if st, err := f.Stat(); err == nil && st.IsDir() {
 		return name, nil, fmt.Errorf("%s is a folder, not a CSV file", name)
 	}
-	data, err := io.ReadAll(io.LimitReader(f, maxIncludeBytes+1))
+	data, err := io.ReadAll(io.LimitReader(f, int64(m.maxBytes)+1))
 	if err != nil {
 		return name, nil, err
 	}
-	if len(data) > maxIncludeBytes {
+	if len(data) > m.maxBytes {
 		st, _ := f.Stat()
 		n := int64(len(data))
 		if st != nil {
 			n = st.Size()
 		}
-		return name, nil, tooBig(n)
+		return name, nil, tooBig(n, m.maxBytes)
 	}
 	return name, data, nil
 }
 
-func tooBig(n int64) error {
-	return fmt.Errorf("the file is %s; a file a memo reads may be at most %s (split it, or summarize the flows by year)", byteSize(n), byteSize(maxIncludeBytes))
+func tooBig(n int64, max int) error {
+	return fmt.Errorf("the file is %s; a file a memo reads may be at most %s (split it, or summarize the flows by year) %s", byteSize(n), byteSize(int64(max)), parse.LimitHint("file-size", max))
 }
 
 // byteSize writes a size for a reader: 1.0 MiB, 340 KiB, 12 bytes.
@@ -147,10 +155,11 @@ type loaded struct {
 // files it names instead of the file system (a memo read from git). Every
 // error of the memo is returned at once, as a parse.ErrorList.
 func loadSource(name string, src []byte, opt loadOptions, open func(string) ([]byte, error)) (*loaded, error) {
-	files := &memoFiles{dir: filepath.Dir(name), allowOutside: opt.allowOutside, open: open}
+	lim := opt.limits.WithDefaults()
+	files := &memoFiles{dir: filepath.Dir(name), allowOutside: opt.allowOutside, open: open, maxBytes: lim.FileBytes}
 	// Compute even when parsing found errors, so that every error of the
 	// memo is reported at once.
-	memo, perr := parse.ParseWith(name, src, parse.Options{Resolve: files.resolve})
+	memo, perr := parse.ParseWith(name, src, parse.Options{Resolve: files.resolve, Limits: lim})
 	// A long risk analysis draws a progress bar on a terminal.
 	rep, cerr := compute.ComputeWith(memo, compute.Options{Progress: progressBar(os.Stderr)})
 	l := &loaded{memo: memo, rep: rep, files: files.read}
@@ -171,7 +180,7 @@ func loadSource(name string, src []byte, opt loadOptions, open func(string) ([]b
 
 // loadWith reads a memo file, parses and computes it.
 func loadWith(path string, opt loadOptions) (*compute.Report, error) {
-	src, err := os.ReadFile(path)
+	src, err := readMemo(path, opt.limits) // limits.go
 	if err != nil {
 		return nil, err
 	}

@@ -126,6 +126,7 @@ func build(args []string, stdout, stderr io.Writer) int {
 	fs.BoolVar(&opt.appendixOnly, "appendix-only", false, "write only the calculation appendix (HTML or PDF), to attach to a proposal")
 	var lo loadOptions
 	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let the memo read files (cash flows from: FILE.csv) outside its own folder")
+	addLimitFlag(fs, &lo.limits)
 	since := fs.String("changes-since", "", "add a section on what changed since git revision `REV` of the memo (inputs and results, as worth diff)")
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth build [-o FILE] [--format FORMAT] [options] MEMO.md\n\n"+
@@ -278,6 +279,7 @@ func check(args []string, stdout, stderr io.Writer) int {
 	quiet := fs.Bool("q", false, "print nothing when every expectation holds")
 	var lo loadOptions
 	fs.BoolVar(&lo.allowOutside, "allow-outside", false, "let a memo read files (cash flows from: FILE.csv) outside its own folder")
+	addLimitFlag(fs, &lo.limits)
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth check [-q] MEMO.md...\n\n"+
 			"Parses and computes each memo and runs every expect block, writing no files.\n"+

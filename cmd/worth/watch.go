@@ -54,6 +54,7 @@ func watch(args []string, stdout, stderr io.Writer) int {
 	fs.StringVar(&opt.build.templateDir, "template", "", "HTML templates folder `DIR` of the organization's own (as for build)")
 	fs.BoolVar(&opt.build.allowHTML, "allow-html", false, "let raw HTML in the memo's prose through (as for build)")
 	fs.BoolVar(&opt.load.allowOutside, "allow-outside", false, "let the memo read files (cash flows from: FILE.csv) outside its own folder")
+	addLimitFlag(fs, &opt.load.limits)
 	fs.Usage = func() {
 		fmt.Fprintf(fs.Output(), "Usage: worth watch [--port N] [options] MEMO.md\n\n"+
 			"Builds MEMO.html beside the memo and rebuilds it on every save of the memo or\n"+
@@ -226,7 +227,7 @@ func (p *preview) isInput(name string) bool {
 // preview is told to reload.
 func (p *preview) rebuild() {
 	start := time.Now()
-	src, err := os.ReadFile(p.opt.memo)
+	src, err := readMemo(p.opt.memo, p.opt.load.limits) // limits.go
 	var l *loaded
 	if err == nil {
 		l, err = loadSource(p.opt.memo, src, p.opt.load, nil)
