@@ -227,7 +227,7 @@ func sizeHint(n Node) int {
 	case CodeBlock:
 		return 64 + len(x.Text)*9/8
 	case Table:
-		s := 192 + len(x.Caption) + len(x.Note) + len(x.Source) + cells(x.Header)
+		s := 192 + len(x.Caption) + len(x.Note) + len(x.Source) + cells(x.Header) + traceBytes(x)
 		for _, r := range x.Rows {
 			s += 24 + cells(r)
 		}
@@ -533,7 +533,7 @@ func tableHTML(t Table) template.HTML {
 			n += len(c) + 32
 		}
 	}
-	b.Grow(n)
+	b.Grow(n + traceBytes(t)) // the titles and links too (scale.go)
 	cols := len(t.Header)
 	for _, row := range t.Rows {
 		cols = max(cols, len(row))

@@ -489,6 +489,8 @@ type pdfWriter struct {
 	inAppendix bool
 	lastGap    float64 // space left below the previous block
 	outline    int     // level of the last bookmark
+
+	hasTextColor bool // textColor is set in fpdf (setTextColor)
 }
 
 type pdfListMarker struct {
@@ -605,8 +607,11 @@ func (w *pdfWriter) setFont(fc pdfFace, size float64) {
 }
 
 func (w *pdfWriter) setTextColor(c pdfRgb) {
+	if w.hasTextColor && w.textColor == c {
+		return // fpdf keeps it (across pages too); setting it again only formats it again
+	}
 	w.pdf.SetTextColor(c.r, c.g, c.b)
-	w.textColor = c
+	w.textColor, w.hasTextColor = c, true
 }
 
 func (w *pdfWriter) setDraw(c pdfRgb, width float64) {

@@ -241,3 +241,32 @@ func (t *takeBytes) Write(p []byte) (int, error) {
 	}
 	return len(p), nil
 }
+
+// traceBytes estimates what a table's traces add to its HTML: each traced
+// cell's title and link, and the "Source: ..." title of the other figures
+// of a table with a source (cellTrace). The HTML writer sizes its buffers
+// with it (sizeHint, tableHTML): without it they fell short by a third for
+// a memo of many alternatives, whose schedules are traced cell by cell,
+// and grew by copying.
+func traceBytes(t Table) int {
+	n := 0
+	for r, row := range t.Rows {
+		for i, c := range row {
+			switch {
+			case r < len(t.Trace) && i < len(t.Trace[r]) && t.Trace[r][i].Title != "":
+				// ` title="…"`, and `<a class="trace" href="…">…</a>`
+				tr := t.Trace[r][i]
+				n += len(tr.Title) + 9
+				if tr.Href != "" {
+					n += len(tr.Href) + 28
+				}
+			case t.Source != "" && i < len(t.Align) && t.Align[i] == 'r' && c != "":
+				n += len(t.Source) + 17 // ` title="Source: …"`
+			}
+		}
+		if r < len(t.RowIDs) {
+			n += len(t.RowIDs[r]) + 8
+		}
+	}
+	return n
+}
