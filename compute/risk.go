@@ -296,6 +296,9 @@ func (e *env) risk(memo *parse.Memo, src *parse.Risk, rep *Report, comps map[str
 			opt.Progress(p)
 		}
 	}
+	if !e.checkRisk(src, c, len(m.quantities())) {
+		return nil // past a limit (limits.go)
+	}
 	res, err := m.run(src.Trials, src.Seed, progress)
 	if err != nil {
 		e.errs.Add(src.Pos, "risk %s: %v; bound the distributions (triangular, pert, uniform) or move their ranges so that every draw is valid", src.ID, err)

@@ -365,11 +365,18 @@ func (p *parser) record(op *token, kind govaluate.TokenKind) {
 
 func (p *parser) binary(op *token, l, r *node) *node {
 	if l.kind == nNum && r.kind == nNum {
-		if v, ok := fold(op.text, l.num, r.num); ok {
+		// Fix (limits): a constant that is not finite (1/0) is left to
+		// the checked operation, which reports it at the operator.
+		if v, ok := fold(op.text, l.num, r.num); ok && finite(v) {
 			return &node{kind: nNum, num: v}
 		}
 	}
 	p.record(op, gvKind(op.text))
+	if checked(op.text) {
+		// Division, remainder and power report a result that is not a
+		// finite number at the operator (checked.go).
+		return &node{kind: nCall, str: op.text, args: []*node{l, r}, fn: checkedOp(op.text, p.text(op), op.pos)}
+	}
 	return &node{kind: nBinary, str: op.text, args: []*node{l, r}}
 }
 

@@ -29,6 +29,10 @@ type Limits struct {
 	// LineYears bounds the work of one comparison: each member's money
 	// lines times its years (1,000 on a perpetual horizon, for payback).
 	LineYears int
+	// RiskValues bounds the present worths a risk block keeps (trials ×
+	// alternatives), RiskWork the amounts it evaluates (trials × amounts
+	// that depend on a draw).
+	RiskValues, RiskWork int
 }
 
 // LimitInfo describes one limit for the --limit flag and the docs.
@@ -50,6 +54,8 @@ var LimitTable = []LimitInfo{
 	{"file-size", 1 << 20, true, "size of a CSV file a memo reads", func(l *Limits) *int { return &l.FileBytes }},
 	{"schedule-years", 1000000, false, "alternatives × (horizon years + 1), every comparison together", func(l *Limits) *int { return &l.ScheduleYears }},
 	{"line-years", 500000000, false, "money lines × horizon years of one comparison", func(l *Limits) *int { return &l.LineYears }},
+	{"risk-values", 20000000, false, "trials × alternatives of one risk block", func(l *Limits) *int { return &l.RiskValues }},
+	{"risk-work", 2000000000, false, "trials × amounts drawn of one risk block", func(l *Limits) *int { return &l.RiskWork }},
 }
 
 // WithDefaults returns l with every zero field set to its default.
