@@ -219,7 +219,7 @@ func (e *env) year(t parse.Text, what string, min int) (int, bool) {
 	// Fix (limits): a year past the bound said "at least 1", as if it were
 	// too small.
 	if v > MaxYear {
-		e.errs.Add(t.Pos, "%s of %s years is past the %s years worth accepts", what, trimFloat(v), parse.Thousands(MaxYear))
+		e.errs.Add(t.Pos, "%s is %s years, past the %s years worth accepts", what, trimFloat(v), parse.Thousands(MaxYear))
 		return 0, false
 	}
 	return int(v), true
