@@ -86,6 +86,9 @@ func (p *parser) cashFlowsFrom(a *Alternative, val Text) []*FlowLine {
 // comments.
 func (p *parser) readCSVFlows(name string, data []byte) []*FlowLine {
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if !p.csvIsText(name, data) { // limits.go
+		return nil
+	}
 	r := csv.NewReader(bytes.NewReader(data))
 	r.FieldsPerRecord = -1
 	r.Comment = '#'

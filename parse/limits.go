@@ -185,7 +185,7 @@ func (p *parser) checkSource(src []byte) bool {
 	lim := p.limits
 	if len(src) > lim.MemoBytes {
 		p.errorf(Pos{File: p.memo.File, Line: 1, Col: 1}, "the memo is larger than %s, the most worth reads %s",
-			strings.Replace(SizeOrCount("memo-size", lim.MemoBytes), "MiB", " MiB", 1), LimitHint("memo-size", lim.MemoBytes))
+			humanBytes(lim.MemoBytes), LimitHint("memo-size", lim.MemoBytes))
 		return false
 	}
 	if bytes.HasPrefix(src, []byte{0xff, 0xfe}) || bytes.HasPrefix(src, []byte{0xfe, 0xff}) {
@@ -245,4 +245,46 @@ func (p *parser) tooManyLines(a *Alternative) {
 			a.ID, Thousands(n), LimitHint("lines", n))
 		a.Lines = a.Lines[:n]
 	}
+}
+
+// csvIsText reports a CSV file that is not UTF-8 text (an image or a
+// spreadsheet saved in its own format), at its first offending byte.
+func (p *parser) csvIsText(name string, data []byte) bool {
+	at := func(i int) Pos {
+		line := 1 + bytes.Count(data[:i], []byte("\n"))
+		col := 1 + utf8.RuneCount(data[bytes.LastIndexByte(data[:i], '\n')+1:i])
+		return Pos{File: name, Line: line, Col: col}
+	}
+	if bytes.HasPrefix(data, []byte{0xff, 0xfe}) || bytes.HasPrefix(data, []byte{0xfe, 0xff}) {
+		p.errorf(Pos{File: name, Line: 1, Col: 1}, "the CSV is in UTF-16; save it as UTF-8 (comma-separated)")
+		return false
+	}
+	if i := bytes.IndexByte(data, 0); i >= 0 {
+		p.errorf(at(i), "the file holds a NUL byte, so it is not a CSV text file (a spreadsheet or an image?); save it as CSV")
+		return false
+	}
+	if !utf8.Valid(data) {
+		i := 0
+		for i < len(data) {
+			r, n := utf8.DecodeRune(data[i:])
+			if r == utf8.RuneError && n <= 1 {
+				break
+			}
+			i += n
+		}
+		p.errorf(at(i), "the CSV is not valid UTF-8 here (byte 0x%02x); save it as UTF-8", data[i])
+		return false
+	}
+	return true
+}
+
+// humanBytes writes a size for a reader: 4 MiB, 512 KiB, 700 bytes.
+func humanBytes(n int) string {
+	switch {
+	case n >= 1<<20 && n%(1<<20) == 0:
+		return fmt.Sprintf("%d MiB", n>>20)
+	case n >= 1<<10 && n%(1<<10) == 0:
+		return fmt.Sprintf("%d KiB", n>>10)
+	}
+	return fmt.Sprintf("%d bytes", n)
 }

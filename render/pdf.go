@@ -2255,6 +2255,14 @@ func (w *pdfWriter) registerLogo(lg *pdfLogoImage) {
 	w.logo = lg
 }
 
+// CheckLogo reports why the logo at path (relative to the memo's folder
+// base) cannot go into a PDF, or nil: the command line reports it at the
+// front matter's logo line before anything is drawn.
+func CheckLogo(base, path string) error {
+	_, err := pdfLoadLogo(base, path)
+	return err
+}
+
 // pdfLoadLogo reads a PNG or JPEG logo from path, relative to base. It
 // refuses absolute paths, paths that leave base, symbolic links anywhere
 // along the path, files that are not PNG or JPEG images, and files over
@@ -2328,6 +2336,11 @@ func pdfLoadLogo(base, path string) (*pdfLogoImage, error) {
 	}
 	if cfg.Width <= 0 || cfg.Height <= 0 || cfg.Width > 8000 || cfg.Height > 8000 || cfg.Width*cfg.Height > 16<<20 {
 		return nil, fail("is %d×%d pixels; a logo may have at most 8000 on a side and 16 million in all", cfg.Width, cfg.Height)
+	}
+	// Fix (hostile input): a PNG whose header reads well but whose data is
+	// damaged made fpdf panic; the whole image is decoded first.
+	if _, _, err := image.Decode(bytes.NewReader(data)); err != nil {
+		return nil, fail("cannot be read as an image: %v", err)
 	}
 	if lg.typ == "PNG" && !pdfSimplePNG(data) {
 		// fpdf reads 8-bit, non-interlaced PNG; anything else is decoded

@@ -210,6 +210,12 @@ func build(args []string, stdout, stderr io.Writer) int {
 	for i, t := range targets {
 		fmts[i], paths[i] = t.format, t.path
 	}
+	// A PDF's logo is checked first, so that its error names the front
+	// matter's line (limits.go).
+	if err := checkLogo(rep.Memo, fmts); err != nil {
+		printErr(stderr, err)
+		return 2
+	}
 	if err := writeOutputs(rep, paths, fmts, opt, stdout); err != nil {
 		fmt.Fprintf(stderr, "worth build: %v\n", err)
 		return 2
