@@ -20,13 +20,13 @@ const hostileEverywhere = "testdata/hostile-everywhere/memo.md"
 // hostileTexts must each appear in the report as text, exactly.
 var hostileTexts = []string{
 	`<script>alert('t')</script> {{.}} [x](javascript:alert(1))`, // title
-	`{{template "memo" .}} <img src=x onerror=alert(2)>`,          // to
+	`{{template "memo" .}} <img src=x onerror=alert(2)>`,         // to
 	`<iframe src="javascript:alert(4)"></iframe> {{define "x"}}y{{end}}`,
 	`Heading {{.Title}} <script>alert(5)</script>`,
 	`{{printf "%s" "x"}}`,
 	`{{.}} <script>alert(10)</script> [l](javascript:alert(11))`, // a name
-	`javascript:alert(12) data:text/html,x`,                       // b name
-	`<script>alert(18)</script> {{.}} javascript:alert(19)`,       // a CSV note
+	`javascript:alert(12) data:text/html,x`,                      // b name
+	`<script>alert(18)</script> {{.}} javascript:alert(19)`,      // a CSV note
 }
 
 // TestHTMLHostileEverywhere: the page holds no live markup (no script,
