@@ -94,15 +94,17 @@ func (p *parser) checkProse(body []byte) bool {
 		if fenceChar != 0 {
 			continue
 		}
+		// A blank line ends a paragraph; the front matter, blanked to
+		// spaces, reads as blank lines.
+		if len(bytes.TrimSpace(line)) == 0 {
+			marks = 0
+			continue
+		}
 		if nest > MaxNesting {
 			return fail(start, "this line nests %d lists and block quotes; worth reads Markdown nested at most %d deep", nest, MaxNesting)
 		}
 		if col > MaxIndent {
 			return fail(start, "this line is indented %d columns; worth reads lines indented at most %d (lists nested this deep are a sign of a damaged file)", col, MaxIndent)
-		}
-		if len(bytes.TrimSpace(line)) == 0 {
-			marks = 0 // a blank line ends a paragraph
-			continue
 		}
 		run, bars := 0, 0
 		for k, c := range line {

@@ -51,6 +51,9 @@ func TestLimitFlag(t *testing.T) {
 		want  string // a part of standard error; "" for none
 	}{
 		{"defaults hold", small, nil, 0, ""},
+		// The front matter is blanked to spaces before the Markdown is
+		// read; a long line there is no indentation.
+		{"long front matter line", strings.Replace(small, "title: Limits", "title: "+strings.Repeat("Limits ", 1000), 1), nil, 0, ""},
 		{"alternatives", small, []string{"--limit", "alternatives=2"}, 2, ":32:4: the memo has more than 2 alternatives, the most worth reads in one memo (raise it with --limit alternatives=4)"},
 		{"blocks", small, []string{"--limit", "blocks=3"}, 2, ":32:4: the memo has more than 3 worth blocks"},
 		{"lines", small, []string{"--limit", "lines=4"}, 2, ":16:1: alternative opt0 has more than 4 money lines (CSV rows included), the most worth reads for one alternative (raise it with --limit lines=8)"},
