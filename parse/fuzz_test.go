@@ -129,9 +129,10 @@ func checkParsed(t *testing.T, m *Memo, err error, files map[string][]byte) {
 			}
 		case Text:
 			// A value read from a block line stands as written at its
-			// position (a file name may be in quotes), so that a column
-			// inside it is a column of the line. Not checked: the front
-			// matter, whose YAML may quote or fold a value, and CSV cells.
+			// position (a file name may be in quotes; every space character
+			// is read as a plain space), so that a column inside it is a
+			// column of the line. Not checked: the front matter, whose YAML
+			// may quote or fold a value, and CSV cells.
 			if v.Src == "" || !v.Pos.IsValid() || v.Pos.File != "memo.md" || strings.HasPrefix(path, "memo.Front") {
 				return
 			}
@@ -139,7 +140,7 @@ func checkParsed(t *testing.T, m *Memo, err error, files map[string][]byte) {
 			if !ok || v.Pos.Col < 1 || v.Pos.Col > utf8.RuneCount(line)+1 {
 				return // reported as a position
 			}
-			rest := string(line[colOffset(line, v.Pos.Col):])
+			rest := plainSpaces(string(line[colOffset(line, v.Pos.Col):]))
 			if !strings.HasPrefix(rest, v.Src) && !strings.HasPrefix(strings.TrimLeft(rest, `"'`), v.Src) {
 				t.Errorf("%s: %q is not at %v, which reads %q", path, v.Src, v.Pos, rest)
 			}

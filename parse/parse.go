@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"regexp"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 
 	"github.com/yuin/goldmark"
@@ -403,7 +404,7 @@ func (p *parser) codeSpan(n *ast.CodeSpan, body []byte) {
 			b.Write(t.Segment.Value(body))
 		}
 	}
-	s := b.String()
+	s := plainSpaces(b.String())
 	if start < 0 || !strings.HasPrefix(strings.TrimSpace(s), "=") {
 		return
 	}
@@ -531,7 +532,7 @@ func (p *parser) blockLines(n *ast.FencedCodeBlock, body []byte) []srcLine {
 	for i := 0; i < n.Lines().Len(); i++ {
 		seg := n.Lines().At(i)
 		raw := strings.TrimRight(string(seg.Value(body)), "\r\n")
-		t := stripComment(raw)
+		t := stripComment(plainSpaces(raw))
 		lead := len(t) - len(strings.TrimLeft(t, " \t"))
 		t = strings.TrimSpace(t)
 		if t == "" {
@@ -540,6 +541,22 @@ func (p *parser) blockLines(n *ast.FencedCodeBlock, body []byte) []srcLine {
 		out = append(out, srcLine{text: t, raw: raw, pos: p.idx.pos(seg.Start + lead)})
 	}
 	return out
+}
+
+// plainSpaces turns every space character (tab, \v, \f, no-break space,
+// the other Unicode spaces) into a plain space, one character for one, so
+// that columns stay those of the line.
+//
+// Fix (fuzzing, FuzzParse): the line readers measure the spaces and tabs
+// they trim while strings.TrimSpace drops every Unicode space, so a value
+// after a \v or a no-break space ("life:\v5") was placed columns off.
+func plainSpaces(s string) string {
+	return strings.Map(func(r rune) rune {
+		if r != ' ' && unicode.IsSpace(r) {
+			return ' '
+		}
+		return r
+	}, s)
 }
 
 // stripComment removes a # comment that is not inside a quoted string.
