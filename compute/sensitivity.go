@@ -239,7 +239,7 @@ func (e *env) analyses(memo *parse.Memo, rep *Report, comps map[string]*Comparis
 			}
 		}
 	}
-	if len(*e.errs) > 0 {
+	if len(*e.errs) > 0 || !e.checkWhatIfs(memo) { // limits.go
 		return
 	}
 	for _, run := range runs {

@@ -33,6 +33,9 @@ type Limits struct {
 	// alternatives), RiskWork the amounts it evaluates (trials × amounts
 	// that depend on a draw).
 	RiskValues, RiskWork int
+	// WhatIfRows bounds the recomputations of scenarios and sensitivity
+	// blocks times the rows of the memo's schedules.
+	WhatIfRows int
 }
 
 // LimitInfo describes one limit for the --limit flag and the docs.
@@ -56,6 +59,7 @@ var LimitTable = []LimitInfo{
 	{"line-years", 500000000, false, "money lines × horizon years of one comparison", func(l *Limits) *int { return &l.LineYears }},
 	{"risk-values", 20000000, false, "trials × alternatives of one risk block", func(l *Limits) *int { return &l.RiskValues }},
 	{"risk-work", 2000000000, false, "trials × amounts drawn of one risk block", func(l *Limits) *int { return &l.RiskWork }},
+	{"what-if-rows", 20000000, false, "recomputations of scenarios and sensitivities × schedule rows", func(l *Limits) *int { return &l.WhatIfRows }},
 }
 
 // WithDefaults returns l with every zero field set to its default.

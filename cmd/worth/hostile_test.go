@@ -66,8 +66,9 @@ func TestLimitFlag(t *testing.T) {
 		{"line-years", small, []string{"--limit", "line-years=1000"}, 2, "compare pick would work through 1,281 money lines × years, more than the 1,000 worth does for one comparison (raise it with --limit line-years=2000)"},
 		{"risk-values", small, []string{"--limit", "risk-values=2000"}, 2, "risk pick-risk would keep 3,000 present worths (1,000 trials × 3 alternatives), more than the 2,000 worth keeps for one risk block (raise it with --limit risk-values=4000)"},
 		{"risk-work", small, []string{"--limit", "risk-work=500"}, 2, "more than the 500 worth evaluates for one risk block (raise it with --limit risk-work=1000)"},
+		{"what-if-rows", small + "\n```scenario dear\nprice = 0.2\n```\n", []string{"--limit", "what-if-rows=100"}, 2, ":51:4: the scenarios and sensitivities up to this scenario block take about 1 recomputation of the memo's 183 schedule rows, more than the 100 rows of what-ifs worth computes for one memo (raise it with --limit what-if-rows=200)"},
 		{"two limits", small, []string{"--limit", "alternatives=2", "--limit", "blocks=100000"}, 2, "more than 2 alternatives"},
-		{"unknown limit", small, []string{"--limit", "trials=5"}, 2, `unknown limit "trials"; names: memo-size, blocks, alternatives, lines, file-size, schedule-years, line-years, risk-values, risk-work`},
+		{"unknown limit", small, []string{"--limit", "trials=5"}, 2, `unknown limit "trials"; names: memo-size, blocks, alternatives, lines, file-size, schedule-years, line-years, risk-values, risk-work, what-if-rows`},
 		{"no value", small, []string{"--limit", "alternatives"}, 2, "expected NAME=N"},
 		{"not a number", small, []string{"--limit", "alternatives=many"}, 2, `alternatives: expected a positive whole number, got "many"`},
 	}

@@ -14,7 +14,7 @@ import (
 )
 
 // limitUsage is the help text of the --limit flag.
-const limitUsage = "raise a limit, `NAME=N` (memo-size, blocks, alternatives, lines, file-size, schedule-years, line-years, risk-values, risk-work; see README.md, Limits); may be repeated"
+const limitUsage = "raise a limit, `NAME=N` (memo-size, blocks, alternatives, lines, file-size, schedule-years, line-years, risk-values, risk-work, what-if-rows; see README.md, Limits); may be repeated"
 
 // addLimitFlag registers --limit on a command's flags.
 func addLimitFlag(fs *flag.FlagSet, l *parse.Limits) {
