@@ -63,7 +63,7 @@ func gitShow(rev, path string) ([]byte, error) {
 func loadVersion(arg string, opt loadOptions) (*loaded, error) {
 	rev, path, isRev := revisionOf(arg)
 	if !isRev {
-		src, err := os.ReadFile(path)
+		src, err := readMemo(path, opt.limits) // limits.go
 		if err != nil {
 			return nil, err
 		}
