@@ -5,8 +5,8 @@ package bench
 // offers to HTML in under 3 s and to JSON under 1 s, the cost growing
 // linearly (the ns/alt metric stays about level from one size to the
 // next), and the 1,000-offer memo built in under 200 MB (measured on the
-// binary with /usr/bin/time -v; TestPeakMemory below is a check from
-// inside the process). Run with
+// binary with /usr/bin/time -v, and by TestPeakMemory in cmd/worth). Run
+// with
 //
 //	go test ./bench -run XXX -bench . -benchtime 3x
 
@@ -15,7 +15,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -163,47 +162,6 @@ func TestMemos(t *testing.T) {
 			t.Errorf("n=%d: the memo uses only the line forms %v", n, forms)
 		}
 	}
-}
-
-// TestPeakMemory builds the 1,000-offer memo to HTML, PDF and JSON in this
-// process and checks that the heap in use after each stage, with the
-// inputs and outputs still held, stays under the 200 MB target. (The
-// binary's peak resident size, the figure in README, is measured with
-// /usr/bin/time -v.)
-func TestPeakMemory(t *testing.T) {
-	if testing.Short() {
-		t.Skip("builds the 1,000-offer memo")
-	}
-	const limit = 200 << 20
-	var ms runtime.MemStats
-	heap := func(stage string) {
-		runtime.GC()
-		runtime.ReadMemStats(&ms)
-		t.Logf("%s: heap in use %.1f MB, total allocated %.1f MB", stage, float64(ms.HeapInuse)/(1<<20), float64(ms.TotalAlloc)/(1<<20))
-		if ms.HeapInuse > limit {
-			t.Errorf("%s: heap in use %.1f MB, over the %d MB target", stage, float64(ms.HeapInuse)/(1<<20), limit>>20)
-		}
-	}
-	rep := parseCompute(t, 1000)
-	heap("parse and compute")
-	doc := render.BuildDoc(rep, render.DocOptions{})
-	heap("document")
-	h, err := render.HTML(doc, render.HTMLOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	heap("HTML")
-	p, err := render.PDF(doc, render.PDFOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	heap("PDF")
-	j, err := render.JSON(rep)
-	if err != nil {
-		t.Fatal(err)
-	}
-	heap("JSON")
-	t.Logf("sizes: HTML %d KB, PDF %d KB, JSON %d KB", len(h)>>10, len(p)>>10, len(j)>>10)
 }
 
 var memosDir = flag.String("memos", "", "write the generated memos to `DIR` (TestWriteMemos)")

@@ -182,6 +182,7 @@ func (b *builder) anchorSchedule(t *Table, r *compute.Result, c *compute.Compari
 	t.ID = flowsID(c, r)
 	traceCells(t)
 	t.RowIDs = make([]string, len(t.Rows))
+	rate := b.f.Rate(c.Rate.Effective) // once, not a row (scale)
 	for i, y := range r.Flows {
 		if i >= len(t.Rows) || len(t.Rows[i]) < 6 {
 			break
@@ -190,7 +191,7 @@ func (b *builder) anchorSchedule(t *Table, r *compute.Result, c *compute.Compari
 		if len(y.Notes) > 0 {
 			t.Trace[i][3] = Trace{Title: fmt.Sprintf("year %d of %s: %s", y.Year, r.Alt.Name, strings.Join(y.Notes, ", "))}
 		}
-		t.Trace[i][4] = Trace{Title: fmt.Sprintf("year %d: %s × (P/F, %s, %d) = %s", y.Year, b.whole(y.Net), b.f.Rate(c.Rate.Effective), y.Year, b.whole(y.Discounted))}
+		t.Trace[i][4] = Trace{Title: fmt.Sprintf("year %d: %s × (P/F, %s, %d) = %s", y.Year, b.whole(y.Net), rate, y.Year, b.whole(y.Discounted))}
 	}
 }
 
