@@ -186,7 +186,15 @@ func leadersNote(c *compute.Comparison) string {
 	if c.CostOnly {
 		word = "lowest present cost"
 	}
-	return fmt.Sprintf("Only the %d alternatives of %s, of the %s compared, are drawn; the results table lists them all.", manySeries, word, group(strconv.Itoa(len(c.Results))))
+	return fmt.Sprintf("Only the %s alternatives of %s, of the %s compared, are drawn; the results table lists them all.", smallNumber(manySeries), word, group(strconv.Itoa(len(c.Results))))
+}
+
+// smallNumber writes a count below ten in words, as prose does.
+func smallNumber(n int) string {
+	if n >= 0 && n < 10 {
+		return [...]string{"no", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine"}[n]
+	}
+	return strconv.Itoa(n)
 }
 
 // noteLeaders says under a chart of a comparison of many alternatives, and
