@@ -116,17 +116,9 @@ func diff(args []string, stdout, stderr io.Writer) int {
 			"With -o, also writes the revision note as Markdown, HTML or PDF.\n\nOptions:\n")
 		fs.PrintDefaults()
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if len(pos) != 2 {
-		fmt.Fprintln(stderr, "worth diff: give two versions of a memo: OLD.md NEW.md (either may be REV:PATH)")
-		fs.Usage()
-		return 2
+	pos, code, ok := positional(fs, args, stderr, 2, "worth diff: give two versions of a memo: OLD.md NEW.md (either may be REV:PATH)")
+	if !ok {
+		return code
 	}
 	fm := *format
 	if *out != "" && fm == "" {
@@ -167,6 +159,7 @@ func diff(args []string, stdout, stderr io.Writer) int {
 		return 0
 	}
 	var data []byte
+	var err error
 	switch fm {
 	case "md":
 		data = render.RevisionMarkdown(rev, newRep)

@@ -64,6 +64,26 @@ func run(args []string, stdout, stderr io.Writer) int {
 	return 2
 }
 
+// positional parses the flags (before or after the arguments) and checks
+// the number of positional arguments: n exactly, or at least one when n is
+// -1. When ok is false the command ends with code (0 after --help, 2 on a
+// usage error, which is reported with missing and the usage).
+func positional(fs *flag.FlagSet, args []string, stderr io.Writer, n int, missing string) (pos []string, code int, ok bool) {
+	pos, err := parseInterspersed(fs, args)
+	if err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return nil, 0, false
+		}
+		return nil, 2, false
+	}
+	if (n >= 0 && len(pos) != n) || (n < 0 && len(pos) == 0) {
+		fmt.Fprintln(stderr, missing)
+		fs.Usage()
+		return nil, 2, false
+	}
+	return pos, 0, true
+}
+
 // parseInterspersed parses flags that may come before or after the
 // positional arguments, and returns the positional ones.
 func parseInterspersed(fs *flag.FlagSet, args []string) ([]string, error) {
@@ -133,17 +153,9 @@ func build(args []string, stdout, stderr io.Writer) int {
 			"Computes the memo and writes its report. Without -o, writes MEMO.html and\nMEMO.pdf beside the memo (with --format, MEMO.FORMAT; Markdown as MEMO.report.md).\nA memo with an error writes nothing and leaves earlier output untouched.\n\nOptions:\n")
 		fs.PrintDefaults()
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if len(pos) != 1 {
-		fmt.Fprintln(stderr, "worth build: give exactly one memo file")
-		fs.Usage()
-		return 2
+	pos, code, ok := positional(fs, args, stderr, 1, "worth build: give exactly one memo file")
+	if !ok {
+		return code
 	}
 	memoPath := pos[0]
 	// Decide the outputs before computing, so a bad option fails fast.
@@ -292,19 +304,10 @@ func check(args []string, stdout, stderr io.Writer) int {
 			"Exit status: 0 when every expectation holds, 1 when one fails, 2 on an error in a memo.\n\nOptions:\n")
 		fs.PrintDefaults()
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
+	pos, code, ok := positional(fs, args, stderr, -1, "worth check: give one or more memo files")
+	if !ok {
+		return code
 	}
-	if len(pos) == 0 {
-		fmt.Fprintln(stderr, "worth check: give one or more memo files")
-		fs.Usage()
-		return 2
-	}
-	code := 0
 	for _, path := range pos {
 		rep, err := loadWith(path, lo)
 		if err != nil {

@@ -31,17 +31,9 @@ func newMemo(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(fs.Output(), "\nOptions:\n")
 		fs.PrintDefaults()
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if len(pos) != 1 {
-		fmt.Fprintln(stderr, "worth new: give exactly one file name for the new memo, e.g. worth new pump-station.md")
-		fs.Usage()
-		return 2
+	pos, code, ok := positional(fs, args, stderr, 1, "worth new: give exactly one file name for the new memo, e.g. worth new pump-station.md")
+	if !ok {
+		return code
 	}
 	path := pos[0]
 	known := false

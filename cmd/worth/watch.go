@@ -63,17 +63,9 @@ func watch(args []string, stdout, stderr io.Writer) int {
 			"last good version and the files on disk are left as they were. Ctrl-C stops.\n\nOptions:\n")
 		fs.PrintDefaults()
 	}
-	pos, err := parseInterspersed(fs, args)
-	if err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return 0
-		}
-		return 2
-	}
-	if len(pos) != 1 {
-		fmt.Fprintln(stderr, "worth watch: give exactly one memo file")
-		fs.Usage()
-		return 2
+	pos, code, ok := positional(fs, args, stderr, 1, "worth watch: give exactly one memo file")
+	if !ok {
+		return code
 	}
 	opt.memo = pos[0]
 	if opt.port < 0 || opt.port > 65535 {
