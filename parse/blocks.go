@@ -255,22 +255,8 @@ var reStudy = regexp.MustCompile(`^study period\s+(.+)$`)
 
 func (p *parser) compare(h BlockHead, lines []srcLine) Block {
 	c := &Compare{BlockHead: h}
-	seen := map[string]int{}
-	for _, l := range lines {
-		key, keyText, val, ok := l.splitKV()
-		if !ok {
-			p.errorf(l.pos, "expected \"key: value\" in compare %s; got %q", h.ID, l.text)
-			continue
-		}
-		if prev, dup := seen[key]; dup {
-			p.errorf(keyText.Pos, "%s is given twice in compare %s (first at line %d)", key, h.ID, prev)
-			continue
-		}
-		seen[key] = l.pos.Line
-		if val.Src == "" {
-			p.errorf(val.Pos, "%s has no value after the colon", keyText.Src)
-			continue
-		}
+	for _, kl := range p.keyLines(h, lines, "", nil) {
+		key, keyText, val := kl.key, kl.keyText, kl.val
 		switch key {
 		case "alternatives":
 			for _, a := range SplitArgs(val.Src) {

@@ -2,6 +2,7 @@ package parse
 
 import (
 	"bytes"
+	"fmt"
 	"regexp"
 	"strings"
 	"unicode"
@@ -603,6 +604,49 @@ func (l srcLine) splitKV() (key string, keyText Text, value Text, ok bool) {
 	lead := len(v) - len(strings.TrimLeft(v, " \t"))
 	v = strings.TrimSpace(v)
 	return normKey(k), l.at(0, k), l.at(i+1+lead, v), true
+}
+
+// keyLine is one "key: value" line of a block.
+type keyLine struct {
+	srcLine
+	key     string // lower case, single spaces
+	keyText Text   // the key as written
+	val     Text
+}
+
+// keyLines reads the "key: value" lines of a block. A line without a colon
+// (the error quotes example, e.g. "trials: 20000", when one is given), a
+// key given a second time, and a key without a value are errors; the other
+// lines are returned in order. canon, when not nil, maps a key to the one
+// it stands for before the repeat check.
+func (p *parser) keyLines(h BlockHead, lines []srcLine, example string, canon func(string) string) []keyLine {
+	seen := map[string]int{}
+	var out []keyLine
+	for _, l := range lines {
+		key, keyText, val, ok := l.splitKV()
+		if !ok {
+			eg := ""
+			if example != "" {
+				eg = fmt.Sprintf(", e.g. %q", example)
+			}
+			p.errorf(l.pos, "expected \"key: value\" in %s %s%s; got %q", h.Kind, h.ID, eg, l.text)
+			continue
+		}
+		if canon != nil {
+			key = canon(key)
+		}
+		if prev, dup := seen[key]; dup {
+			p.errorf(keyText.Pos, "%s is given twice in %s %s (first at line %d)", key, h.Kind, h.ID, prev)
+			continue
+		}
+		seen[key] = l.pos.Line
+		if val.Src == "" {
+			p.errorf(val.Pos, "%s has no value after the colon", keyText.Src)
+			continue
+		}
+		out = append(out, keyLine{l, key, keyText, val})
+	}
+	return out
 }
 
 func normKey(k string) string {

@@ -168,3 +168,27 @@ func TestStripComment(t *testing.T) {
 		}
 	}
 }
+
+// TestKeyLines: the blocks read as "key: value" lines report a line without
+// a colon, a key given twice (after its synonym is mapped) and a key
+// without a value, and keep reading.
+func TestKeyLines(t *testing.T) {
+	src := "```compare c\nhorizon perpetual\nrate: 5%\nrate: 6%\nbase:\n```\n\n" +
+		"```replacement r\ndefender: a\nchallenger: b\nmarket value: 10k declining 10%\ndefender market value: 12k declining 10%\n```\n"
+	_, err := Parse("k.md", []byte(src))
+	list, _ := err.(ErrorList)
+	want := []string{
+		`k.md:2:1: expected "key: value" in compare c; got "horizon perpetual"`,
+		"k.md:4:1: rate is given twice in compare c (first at line 3)",
+		"k.md:5:6: base has no value after the colon",
+		"k.md:12:1: market value is given twice in replacement r (first at line 11)",
+	}
+	if len(list) != len(want) {
+		t.Fatalf("got %d errors, want %d:\n%v", len(list), len(want), err)
+	}
+	for i, w := range want {
+		if list[i].Error() != w {
+			t.Errorf("error %d:\n got %s\nwant %s", i, list[i].Error(), w)
+		}
+	}
+}

@@ -46,22 +46,8 @@ var riskSynonyms = map[string]string{
 
 func (p *parser) risk(h BlockHead, lines []srcLine) Block {
 	r := &Risk{BlockHead: h, Trials: DefaultTrials, Seed: DefaultSeed}
-	seen := map[string]int{}
-	for _, l := range lines {
-		key, keyText, val, ok := l.splitKV()
-		if !ok {
-			p.errorf(l.pos, "expected \"key: value\" in risk %s, e.g. \"trials: 20000\"; got %q", h.ID, l.text)
-			continue
-		}
-		if prev, dup := seen[key]; dup {
-			p.errorf(keyText.Pos, "%s is given twice in risk %s (first at line %d)", key, h.ID, prev)
-			continue
-		}
-		seen[key] = l.pos.Line
-		if val.Src == "" {
-			p.errorf(val.Pos, "%s has no value after the colon", keyText.Src)
-			continue
-		}
+	for _, kl := range p.keyLines(h, lines, "trials: 20000", nil) {
+		key, keyText, val := kl.key, kl.keyText, kl.val
 		switch key {
 		case "compare":
 			if strings.ContainsAny(val.Src, ", ") {

@@ -105,25 +105,14 @@ var (
 
 func (p *parser) replacement(h BlockHead, lines []srcLine) Block {
 	r := &Replacement{BlockHead: h}
-	seen := map[string]int{}
-	for _, l := range lines {
-		key, keyText, val, ok := l.splitKV()
-		if !ok {
-			p.errorf(l.pos, "expected \"key: value\" in replacement %s, e.g. \"defender: old-pump\"; got %q", h.ID, l.text)
-			continue
-		}
+	canon := func(key string) string {
 		if key == "defender market value" {
-			key = "market value"
+			return "market value"
 		}
-		if prev, dup := seen[key]; dup {
-			p.errorf(keyText.Pos, "%s is given twice in replacement %s (first at line %d)", keyText.Src, h.ID, prev)
-			continue
-		}
-		seen[key] = l.pos.Line
-		if val.Src == "" {
-			p.errorf(val.Pos, "%s has no value after the colon", keyText.Src)
-			continue
-		}
+		return key
+	}
+	for _, kl := range p.keyLines(h, lines, "defender: old-pump", canon) {
+		key, keyText, val := kl.key, kl.keyText, kl.val
 		switch key {
 		case "defender":
 			r.Defender = &Ref{ID: val.Src, Pos: val.Pos}
